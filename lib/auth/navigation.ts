@@ -1,0 +1,24 @@
+// What the navigation offers a person and where each person lands: only screens their roles may use.
+import type { NavItem } from "@/components/shell/NavLinks";
+import { can, unitsWhere, type Grant } from "./roles";
+
+export function navItems(grants: readonly Grant[]): NavItem[] {
+  const items: NavItem[] = [];
+  const censusUnits = unitsWhere(grants, "census.view");
+  if (censusUnits.length) {
+    items.push({ label: "Census", href: { unitScreen: "census", unitIds: censusUnits }, matchPrefix: "^/units/[^/]+/census" });
+  }
+  if (can(grants, "people.manage")) items.push({ label: "People", href: "/people", matchPrefix: "^/people" });
+  if (can(grants, "audit.view")) items.push({ label: "Audit trail", href: "/audit", matchPrefix: "^/audit" });
+  return items;
+}
+
+/** Each role's first screen: clinical and technical roles the census, admins People, quality the audit trail. */
+export function landingPath(grants: readonly Grant[]): string | null {
+  const clinical = grants.find((g) => g.role === "clinician" || g.role === "charge_nurse" || g.role === "biomed");
+  if (clinical) return `/units/${clinical.unitId}/census`;
+  if (can(grants, "people.manage")) return "/people";
+  if (can(grants, "audit.view")) return "/audit";
+  const anyCensus = unitsWhere(grants, "census.view")[0];
+  return anyCensus ? `/units/${anyCensus}/census` : null;
+}

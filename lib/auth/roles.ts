@@ -1,0 +1,49 @@
+// Roles (GLOSSARY.md) and the one permission map. Pure data and pure functions: used by the guards,
+// the navigation and the role × route matrix test alike.
+
+export const ROLES = ["clinician", "charge_nurse", "biomed", "quality", "admin"] as const;
+export type Role = (typeof ROLES)[number];
+
+export const ROLE_LABELS: Record<Role, string> = {
+  clinician: "Clinician",
+  charge_nurse: "Charge nurse",
+  biomed: "Biomedical engineer",
+  quality: "Quality officer",
+  admin: "Administrator",
+};
+
+/** A role held in one unit. Every role is scoped to units. */
+export interface Grant {
+  unitId: string;
+  role: Role;
+}
+
+export const PERMISSIONS = {
+  /** Unit census: beds and current stays (names, record numbers). */
+  "census.view": ["clinician", "charge_nurse", "biomed", "admin"],
+  /** People: create, change roles, deactivate. */
+  "people.manage": ["admin"],
+  /** Audit trail and chain check (read-only). */
+  "audit.view": ["quality"],
+} as const satisfies Record<string, readonly Role[]>;
+export type Permission = keyof typeof PERMISSIONS;
+
+export function roleAllows(role: Role, permission: Permission): boolean {
+  return (PERMISSIONS[permission] as readonly Role[]).includes(role);
+}
+
+/** True when some grant allows the permission — in `unitId` when given, else in any unit. */
+export function can(grants: readonly Grant[], permission: Permission, unitId?: string): boolean {
+  return grants.some((g) => (unitId === undefined || g.unitId === unitId) && roleAllows(g.role, permission));
+}
+
+/** Units in which the grants allow the permission. */
+export function unitsWhere(grants: readonly Grant[], permission: Permission): string[] {
+  return [...new Set(grants.filter((g) => roleAllows(g.role, permission)).map((g) => g.unitId))];
+}
+
+/** The role that explains an allowed action in a unit (recorded in the audit trail). */
+export function roleFor(grants: readonly Grant[], permission: Permission, unitId?: string): Role | null {
+  const g = grants.find((x) => (unitId === undefined || x.unitId === unitId) && roleAllows(x.role, permission));
+  return g?.role ?? null;
+}

@@ -1,0 +1,32 @@
+// What each page, route handler and server action requires. The guards enforce it at run time; the role × route
+// matrix test discovers every route from the file system, fails on any route missing here and checks that the
+// running app answers as this table says for every role and for signed-out callers.
+import type { Permission } from "./roles";
+
+export type Access =
+  | { kind: "public" }
+  | { kind: "signed_in" }
+  | { kind: "permission"; permission: Permission; unitParam?: string };
+
+/** Pages and route handlers, keyed by their App Router path (route groups removed). */
+export const ROUTE_ACCESS: Record<string, Access> = {
+  "/": { kind: "signed_in" },
+  "/signin": { kind: "public" },
+  "/forbidden": { kind: "signed_in" },
+  "/units/[unitId]/census": { kind: "permission", permission: "census.view", unitParam: "unitId" },
+  "/people": { kind: "permission", permission: "people.manage" },
+  "/people/new": { kind: "permission", permission: "people.manage" },
+  "/people/[userId]": { kind: "permission", permission: "people.manage" },
+  "/audit": { kind: "permission", permission: "audit.view" },
+  "/api/health": { kind: "public" },
+  "/api/auth/[...nextauth]": { kind: "public" },
+  "/api/units/[unitId]/census": { kind: "permission", permission: "census.view", unitParam: "unitId" },
+};
+
+/** Server actions, keyed by exported name. */
+export const ACTION_ACCESS: Record<string, Access> = {
+  createPerson: { kind: "permission", permission: "people.manage" },
+  updatePersonRoles: { kind: "permission", permission: "people.manage" },
+  setPersonActive: { kind: "permission", permission: "people.manage" },
+  verifyAuditChain: { kind: "permission", permission: "audit.view" },
+};

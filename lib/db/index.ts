@@ -1,0 +1,2 @@
+import "server-only";
+export { db } from "./knex";

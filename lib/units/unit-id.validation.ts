@@ -1,0 +1,4 @@
+import { z } from "zod";
+
+/** A `[unitId]` route parameter. */
+export const unitIdSchema = z.uuid({ error: "Not a unit id." });

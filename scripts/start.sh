@@ -1,0 +1,66 @@
+#!/usr/bin/env bash
+# npm start (and npm run dev with --dev): brings Corvane up on a fresh machine and stops all it started on exit.
+set -euo pipefail
+source "$(dirname "$0")/lib.sh"
+cd "$ROOT"
+
+MODE=prod
+[ "${1:-}" = "--dev" ] && MODE=dev
+
+load_env_file
+export CORVANE_PG_PORT="${CORVANE_PG_PORT:-55432}"
+export PORT="${PORT:-3000}"
+export DATABASE_URL="${DATABASE_URL:-postgres://corvane@127.0.0.1:$CORVANE_PG_PORT/corvane}"
+export NEXTAUTH_URL="${NEXTAUTH_URL:-http://127.0.0.1:$PORT}"
+export CORVANE_DEMO_MODE="${CORVANE_DEMO_MODE:-1}"
+
+APP_PID=""
+cleanup() {
+  trap - INT TERM EXIT
+  if [ -n "$APP_PID" ] && kill -0 "$APP_PID" 2>/dev/null; then
+    log "stopping the app (pid $APP_PID)"
+    kill -TERM "$APP_PID" 2>/dev/null || true
+    wait "$APP_PID" 2>/dev/null || true
+  fi
+  pg_stop
+}
+trap cleanup EXIT
+trap 'exit 130' INT
+trap 'exit 143' TERM
+
+ensure_postgres
+ensure_node_modules
+ensure_secret
+pg_start main "$CORVANE_PG_PORT"
+ensure_database corvane corvane
+
+log "migrating"
+node_modules/.bin/tsx node_modules/knex/bin/cli.js --knexfile knexfile.ts migrate:latest >/dev/null
+if [ "$CORVANE_DEMO_MODE" = 1 ]; then
+  log "seeding the invented demo (idempotent)"
+  node_modules/.bin/tsx scripts/seed.ts
+fi
+
+if [ "$MODE" = prod ]; then
+  if build_is_stale; then
+    log "building (next build)"
+    node_modules/.bin/next build >/dev/null
+  fi
+  NODE_ENV=production node_modules/.bin/next start -H 127.0.0.1 -p "$PORT" &
+else
+  node_modules/.bin/next dev -H 127.0.0.1 -p "$PORT" &
+fi
+APP_PID=$!
+wait_for_http "http://127.0.0.1:$PORT/api/health" "$APP_PID" || die "the app did not come up"
+
+cat <<EOF
+
+  Corvane is running at http://127.0.0.1:$PORT  (decision support only; see SAFETY.md)
+
+  Demo sign-ins (invented people; password for all: $(node_modules/.bin/tsx -e 'import("./seeds/demo-data.ts").then(m => process.stdout.write(m.DEMO_PASSWORD))')):
+$(node_modules/.bin/tsx -e 'import("./seeds/demo-data.ts").then(m => { for (const p of m.DEMO_PEOPLE) console.log("    " + p.email.padEnd(36) + p.label); })')
+
+  Ctrl-C stops the app and PostgreSQL.
+
+EOF
+wait "$APP_PID"
