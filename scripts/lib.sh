@@ -151,7 +151,7 @@ load_env_file() {
 build_is_stale() {
   [ -f "$ROOT/.next/BUILD_ID" ] || return 0
   local newer
-  newer=$(cd "$ROOT" && find app lib components seeds proxy.ts knexfile.ts next.config.ts postcss.config.mjs \
+  newer=$(cd "$ROOT" && find app lib components seeds proxy.ts instrumentation.ts knexfile.ts next.config.ts postcss.config.mjs \
     package-lock.json tsconfig.json types -newer .next/BUILD_ID -type f -print -quit 2>/dev/null)
   [ -n "$newer" ]
 }

@@ -16,6 +16,9 @@ export CORVANE_DEMO_MODE="${CORVANE_DEMO_MODE:-1}"
 
 APP_PID=""
 cleanup() {
+  # Finish stopping even if the terminal or a pipe reading our output is already gone.
+  set +e
+  trap '' PIPE
   trap - INT TERM EXIT
   if [ -n "$APP_PID" ] && kill -0 "$APP_PID" 2>/dev/null; then
     log "stopping the app (pid $APP_PID)"

@@ -13,7 +13,7 @@ FAILED=0
 FAILED_STEPS=()
 REPORTS="$ROOT/.corvane/test-reports"
 
-cleanup() { trap - EXIT INT TERM; pg_stop; }
+cleanup() { set +e; trap '' PIPE; trap - EXIT INT TERM; pg_stop; }
 trap cleanup EXIT
 trap 'exit 130' INT
 trap 'exit 143' TERM

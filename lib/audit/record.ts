@@ -2,6 +2,7 @@
 // recordAudit (usually through the guards); a failing audit write throws, and so fails the action.
 import type { Knex } from "knex";
 import { db as defaultDb } from "@/lib/db/knex";
+import { logger } from "@/lib/log";
 import type { AuditOutcome } from "@/lib/db/tables";
 import { chainHash, GENESIS_HASH, type ChainedFields } from "./chain";
 
@@ -58,5 +59,7 @@ async function append(trx: Knex.Transaction, entry: AuditEntry): Promise<Recorde
   };
   const hash = chainHash(prevHash, fields);
   await trx("audit_events").insert({ ...fields, outcome: entry.outcome, occurred_at: occurredAt, prev_hash: prevHash, hash });
+  // One log line per audited action: ids and outcome only (details may name patients and stay in the database).
+  logger.info({ requestId: entry.requestId, auditSeq: seq, action: entry.action, outcome: entry.outcome, userId: entry.actor.userId }, "audit entry appended");
   return { seq, hash };
 }

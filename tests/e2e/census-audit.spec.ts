@@ -47,6 +47,7 @@ test.describe("census and audit trail", () => {
     await page.getByLabel("To entry").fill("2");
     await page.getByRole("button", { name: "Check the chain" }).click();
     await expect(page.locator("#toSeq-error")).toContainText("must not come before");
+    await expect(page.getByLabel("From entry")).toHaveValue("9");
     await expectAccessible(page);
     await page.screenshot({ path: ".corvane/screenshots/audit.png", fullPage: true });
   });

@@ -19,6 +19,12 @@ test.describe("People (administrator)", () => {
     await expect(page.locator("#name-error")).toContainText("full name");
     await expect(page.locator("#email-error")).toContainText("valid work e-mail");
     await expect(page.locator("#password-error")).toContainText("12 characters");
+    // Nothing typed is lost, and a corrected field drops its stale message.
+    await expect(page.getByLabel("Full name")).toHaveValue("N");
+    await expect(page.getByLabel("Work e-mail")).toHaveValue("not-an-address");
+    await page.getByLabel("Full name").fill("Nadia Voss");
+    await expect(page.locator("#name-error")).toBeEmpty();
+    await expect(page.locator("#email-error")).toContainText("valid work e-mail");
     await expectAccessible(page);
 
     await page.getByLabel("Full name").fill("Nadia Voss");

@@ -1,6 +1,6 @@
 import Link from "next/link";
 import { auditAs, guardPage } from "@/lib/auth/guard";
-import { unitsWhere } from "@/lib/auth/roles";
+import { ROLE_LABELS, ROLES, unitsWhere, type Role } from "@/lib/auth/roles";
 import { listAuditEvents } from "@/lib/audit/repository";
 import { auditQuerySchema } from "@/lib/audit/audit.validation";
 import { listUnits } from "@/lib/units/repository";
@@ -10,6 +10,7 @@ import { ChainCheckForm } from "@/components/audit/ChainCheckForm";
 export const metadata = { title: "Audit trail" };
 const PAGE_SIZE = 50;
 
+const roleLabel = (r: string) => ((ROLES as readonly string[]).includes(r) ? ROLE_LABELS[r as Role] : r);
 const OUTCOME_TEXT = { success: "Success", failure: "Failure", denied: "Denied" } as const;
 
 export default async function AuditPage({ searchParams }: { searchParams: Promise<Record<string, string | string[] | undefined>> }) {
@@ -55,7 +56,7 @@ export default async function AuditPage({ searchParams }: { searchParams: Promis
               <tr key={e.seq}>
                 <td className="font-mono">{e.seq}</td>
                 <td className="whitespace-nowrap"><time dateTime={e.occurredAt} title={e.occurredAt}>{formatLocalPrecise(e.occurredAt, zone)}</time></td>
-                <td>{e.actorEmail ?? <span className="text-muted">system</span>}{e.actorRole && <span className="block text-muted">{e.actorRole}</span>}</td>
+                <td>{e.actorEmail ?? <span className="text-muted">system</span>}{e.actorRole && <span className="block text-muted">{roleLabel(e.actorRole)}</span>}</td>
                 <td className="font-mono">{e.action}</td>
                 <td className="font-mono text-xs">{e.targetType ? `${e.targetType}: ${e.targetId}` : "—"}</td>
                 <td>{e.unitId ? unitName.get(e.unitId) ?? e.unitId : "—"}</td>
