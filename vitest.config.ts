@@ -12,11 +12,13 @@ export default defineConfig({
     ],
   },
   test: {
-    include: ["tests/unit/**/*.test.ts", "tests/integration/**/*.test.ts"],
     environment: "node",
-    // Integration tests share one database; run files one after another (2 cores here anyway).
-    fileParallelism: false,
-    testTimeout: 30_000,
+    testTimeout: 60_000,
     hookTimeout: 60_000,
+    projects: [
+      { extends: true, test: { name: "unit", include: ["tests/unit/**/*.test.ts"] } },
+      // Integration tests share one database: their files run one after another.
+      { extends: true, test: { name: "integration", include: ["tests/integration/**/*.test.ts"], fileParallelism: false } },
+    ],
   },
 });

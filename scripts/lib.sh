@@ -40,6 +40,17 @@ ensure_chromium() {
   [ -x /usr/bin/chromium ] || apt_install chromium
 }
 
+# The outside reference libraries the engine's tests run live (DOMAIN §3.4): R with pracma, poweRlaw, fracdiff
+# and jsonlite; Debian's python3 with scipy; Octave with its signal package.
+REFERENCE_PACKAGES=(r-base-core r-cran-pracma r-cran-powerlaw r-cran-fracdiff r-cran-jsonlite python3-scipy octave octave-signal)
+ensure_reference_tools() {
+  local missing=() p
+  for p in "${REFERENCE_PACKAGES[@]}"; do
+    [ "$(dpkg-query -W -f='${Status}' "$p" 2>/dev/null)" = "install ok installed" ] || missing+=("$p")
+  done
+  [ ${#missing[@]} -eq 0 ] || apt_install "${missing[@]}"
+}
+
 # npm ci when node_modules is missing or older than the lockfile.
 ensure_node_modules() {
   cd "$ROOT"

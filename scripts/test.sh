@@ -25,6 +25,7 @@ step_result() { # name status
 set -e
 ensure_postgres
 ensure_chromium
+ensure_reference_tools
 ensure_node_modules
 set +e
 mkdir -p "$REPORTS"
@@ -55,11 +56,15 @@ for url in "$DATABASE_URL" "$BASE/corvane_e2e"; do
     || { log "migrate/seed failed for $url"; exit 1; }
 done
 
-log "1/4 typecheck"
+log "1/5 typecheck"
 node_modules/.bin/tsc --noEmit
 step_result typecheck $?
 
-log "2/4 vitest (unit + integration)"
+log "2/5 reference fixtures (R pracma/poweRlaw/fracdiff, scipy, Octave signal — run live)"
+bash tests/reference/run.sh
+step_result "reference scripts" $?
+
+log "3/5 vitest (unit + integration)"
 node_modules/.bin/vitest run --reporter=default --reporter=json --outputFile.json="$REPORTS/vitest.json"
 vitest_status=$?
 if [ -f "$REPORTS/vitest.json" ]; then
@@ -71,12 +76,12 @@ else
   step_result vitest 1
 fi
 
-log "3/4 next build"
+log "4/5 next build"
 node_modules/.bin/next build
 build_status=$?
 step_result "next build" $build_status
 
-log "4/4 playwright e2e (Debian chromium)"
+log "5/5 playwright e2e (Debian chromium)"
 if [ "$build_status" = 0 ]; then
   DATABASE_URL="$BASE/corvane_e2e" PLAYWRIGHT_JSON_OUTPUT_NAME="$REPORTS/playwright.json" \
     node_modules/.bin/playwright test --reporter=list,json

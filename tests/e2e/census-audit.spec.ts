@@ -9,6 +9,7 @@ test.describe("census and audit trail", () => {
     const rows = page.getByRole("table").getByRole("row");
     await expect(rows).toHaveCount(13); // header + 12 beds
     await expect(page.getByText("9 of 12 beds occupied")).toBeVisible();
+    await expect(page.getByText(/^As of \w{3} \d{1,2} \w{3}, \d{2}:\d{2} E[SD]T/)).toBeVisible();
     await expect(page.getByRole("row", { name: /4W-01 Tillery, Rowan DEMO-40117/ })).toContainText(/E[SD]T/);
     await expect(page.getByRole("row", { name: /4W-04/ })).toContainText("Empty bed");
     await expectAccessible(page);
