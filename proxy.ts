@@ -4,7 +4,9 @@
 import { NextResponse, type NextRequest } from "next/server";
 import { getToken } from "next-auth/jwt";
 
-const PUBLIC_PREFIXES = ["/signin", "/api/auth/", "/api/health"];
+// /api/jobs/ is reached by the scheduler with its own secret and no session: its handler checks the secret or an
+// administrator's session itself.
+const PUBLIC_PREFIXES = ["/signin", "/api/auth/", "/api/health", "/api/jobs/"];
 
 export async function proxy(req: NextRequest) {
   const requestId = req.headers.get("x-request-id") ?? crypto.randomUUID();

@@ -147,6 +147,50 @@ ensure_secret() {
   fi
 }
 
+# CORVANE_SCHEDULER_SECRET: lets the scheduler call the compute route; generated once per checkout like the above.
+ensure_scheduler_secret() {
+  if [ -z "${CORVANE_SCHEDULER_SECRET:-}" ]; then
+    mkdir -p "$ROOT/.corvane"
+    if [ ! -s "$ROOT/.corvane/scheduler-secret" ]; then
+      node -e 'process.stdout.write(require("crypto").randomBytes(32).toString("base64url"))' > "$ROOT/.corvane/scheduler-secret"
+      chmod 600 "$ROOT/.corvane/scheduler-secret"
+    fi
+    CORVANE_SCHEDULER_SECRET="$(cat "$ROOT/.corvane/scheduler-secret")"
+    export CORVANE_SCHEDULER_SECRET
+  fi
+}
+
+# supervise NAME CMD…: runs CMD in the background and restarts it (after 2 s) if it exits on its own; a TERM or
+# INT to the supervisor stops the command and the supervisor. Appends the supervisor's PID to SUPERVISED.
+SUPERVISED=()
+supervise() {
+  local name="$1"
+  shift
+  (
+    child=""
+    stopping=0
+    trap 'stopping=1; [ -n "$child" ] && kill -TERM "$child" 2>/dev/null; wait "$child" 2>/dev/null; exit 0' TERM INT
+    while :; do
+      "$@" &
+      child=$!
+      wait "$child"
+      status=$?
+      [ "$stopping" = 1 ] && exit 0
+      log "$name exited (status $status); restarting in 2 s"
+      sleep 2
+    done
+  ) &
+  SUPERVISED+=($!)
+  log "$name started (supervisor pid $!)"
+}
+
+stop_supervised() {
+  local pid
+  for pid in "${SUPERVISED[@]}"; do kill -TERM "$pid" 2>/dev/null || true; done
+  for pid in "${SUPERVISED[@]}"; do wait "$pid" 2>/dev/null || true; done
+  SUPERVISED=()
+}
+
 # Loads .env (if present) without overriding variables already set in the environment.
 load_env_file() {
   local file="$ROOT/.env" line key

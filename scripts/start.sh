@@ -13,6 +13,7 @@ export PORT="${PORT:-3000}"
 export DATABASE_URL="${DATABASE_URL:-postgres://corvane@127.0.0.1:$CORVANE_PG_PORT/corvane}"
 export NEXTAUTH_URL="${NEXTAUTH_URL:-http://127.0.0.1:$PORT}"
 export CORVANE_DEMO_MODE="${CORVANE_DEMO_MODE:-1}"
+export CORVANE_SIM_PORT="${CORVANE_SIM_PORT:-3200}"
 
 APP_PID=""
 cleanup() {
@@ -20,6 +21,8 @@ cleanup() {
   set +e
   trap '' PIPE
   trap - INT TERM EXIT
+  [ ${#SUPERVISED[@]} -gt 0 ] && log "stopping the scheduler, ingest and device simulator"
+  stop_supervised
   if [ -n "$APP_PID" ] && kill -0 "$APP_PID" 2>/dev/null; then
     log "stopping the app (pid $APP_PID)"
     kill -TERM "$APP_PID" 2>/dev/null || true
@@ -34,6 +37,7 @@ trap 'exit 143' TERM
 ensure_postgres
 ensure_node_modules
 ensure_secret
+ensure_scheduler_secret
 pg_start main "$CORVANE_PG_PORT"
 ensure_database corvane corvane
 
@@ -56,6 +60,16 @@ fi
 APP_PID=$!
 wait_for_http "http://127.0.0.1:$PORT/api/health" "$APP_PID" || die "the app did not come up"
 
+# The live pipeline beside the app, each in its own supervised process: the demo's device simulator (invented
+# monitors streaming synthetic beats), the ingest that stores their beats, and the scheduler that computes windows.
+NODE_TS=(node --import tsx)
+if [ "$CORVANE_DEMO_MODE" = 1 ]; then
+  supervise "device simulator" "${NODE_TS[@]}" scripts/simulator.ts --port "$CORVANE_SIM_PORT"
+  wait_for_http "http://127.0.0.1:$CORVANE_SIM_PORT/health" "${SUPERVISED[-1]}" || log "the device simulator is not answering yet"
+fi
+supervise "ingest" "${NODE_TS[@]}" scripts/ingest.ts
+supervise "scheduler" "${NODE_TS[@]}" scripts/scheduler.ts
+
 cat <<EOF
 
   Corvane is running at http://127.0.0.1:$PORT  (decision support only; see SAFETY.md)
@@ -63,7 +77,8 @@ cat <<EOF
   Demo sign-ins (invented people; password for all: $(node_modules/.bin/tsx -e 'import("./seeds/demo-data.ts").then(m => process.stdout.write(m.DEMO_PASSWORD))')):
 $(node_modules/.bin/tsx -e 'import("./seeds/demo-data.ts").then(m => { for (const p of m.DEMO_PEOPLE) console.log("    " + p.email.padEnd(36) + p.label); })')
 
-  Ctrl-C stops the app and PostgreSQL.
+  Device simulator: http://127.0.0.1:$CORVANE_SIM_PORT/health (invented devices, synthetic beats)
+  Ctrl-C stops the app, the simulator, ingest, scheduler and PostgreSQL.
 
 EOF
 wait "$APP_PID"

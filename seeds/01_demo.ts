@@ -3,12 +3,17 @@ import type { Knex } from "knex";
 import { randomUUID } from "node:crypto";
 import { recordAudit } from "@/lib/audit/record";
 import { hashPassword } from "@/lib/auth/password";
-import { BEDS_PER_UNIT, bedLabel, DEMO_PASSWORD, DEMO_PEOPLE, DEMO_STAYS, DEMO_TIME_ZONE, DEMO_UNITS } from "./demo-data";
+import { encryptStreamToken, generateStreamToken, hashStreamToken } from "@/lib/devices/stream-token";
+import {
+  BEDS_PER_UNIT, bedLabel, DEFAULT_SIMULATOR_PORT, DEMO_ASSIGNED_HOURS_AGO, DEMO_DEVICE_FIRMWARE, DEMO_DEVICE_MODEL,
+  DEMO_PASSWORD, DEMO_PEOPLE, DEMO_STAYS, DEMO_TIME_ZONE, DEMO_UNITS, demoDeviceSerial, simulatorStreamUrl,
+} from "./demo-data";
 
 const HOUR = 3_600_000;
 
 export async function seed(knex: Knex): Promise<{ inserted: Record<string, number> }> {
-  const inserted = { units: 0, beds: 0, patients: 0, stays: 0, users: 0, grants: 0 };
+  const inserted = { units: 0, beds: 0, patients: 0, stays: 0, users: 0, grants: 0, devices: 0 };
+  const simulatorPort = Number(process.env.CORVANE_SIM_PORT ?? DEFAULT_SIMULATOR_PORT);
   const now = Date.now();
   await knex.transaction(async (trx) => {
     const unitIds = new Map<string, string>();
@@ -72,6 +77,38 @@ export async function seed(knex: Knex): Promise<{ inserted: Record<string, numbe
           .ignore()
           .returning("user_id");
         inserted.grants += rows.length;
+      }
+    }
+
+    // One simulated monitor per bed, assigned to it; its token exists only sealed in the database.
+    for (const u of DEMO_UNITS) {
+      for (let n = 1; n <= BEDS_PER_UNIT; n++) {
+        const label = bedLabel(u.bedPrefix, n);
+        const serial = demoDeviceSerial(label);
+        const token = generateStreamToken();
+        const added = await trx("devices")
+          .insert({
+            serial,
+            model: DEMO_DEVICE_MODEL,
+            firmware: DEMO_DEVICE_FIRMWARE,
+            timestamp_resolution_ms: u.kind === "neonatal" ? 1 : 1000 / 128,
+            stream_url: simulatorStreamUrl(simulatorPort, serial),
+            stream_token_hash: hashStreamToken(token),
+            stream_token_enc: encryptStreamToken(token),
+          })
+          .onConflict("serial")
+          .ignore()
+          .returning("id");
+        if (!added.length) continue;
+        inserted.devices += 1;
+        const bed = await trx("beds").where({ unit_id: unitIds.get(u.code)!, label }).first("id");
+        await trx("device_assignments").insert({
+          device_id: (added[0] as { id: string }).id,
+          bed_id: bed!.id,
+          assigned_from: new Date(now - DEMO_ASSIGNED_HOURS_AGO * HOUR),
+          assigned_to: null,
+          assigned_by: null,
+        });
       }
     }
 

@@ -79,3 +79,53 @@ export const demoPerson = (role: Role): DemoPerson => {
   if (!p) throw new Error(`no demo person holds ${role}`);
   return p;
 };
+
+/** What each demo bed's simulated device streams (DOMAIN §6 recipe). Every bed has a device, occupied or not. */
+export type DemoScenario =
+  | "healthy_sleep"
+  | "complexity_loss_rigid"
+  | "complexity_loss_decorrelated"
+  | "af_episodes"
+  | "paced"
+  | "ectopy"
+  | "artefacts"
+  | "dropouts_clock_drift"
+  | "nicu"
+  | "nicu_presepsis";
+
+export const DEMO_BED_SCENARIOS: Record<string, DemoScenario> = {
+  "4W-01": "healthy_sleep",
+  "4W-02": "complexity_loss_rigid",
+  "4W-03": "af_episodes",
+  "4W-04": "healthy_sleep",
+  "4W-05": "ectopy",
+  "4W-06": "complexity_loss_decorrelated",
+  "4W-07": "artefacts",
+  "4W-08": "healthy_sleep",
+  "4W-09": "paced",
+  "4W-10": "dropouts_clock_drift",
+  "4W-11": "healthy_sleep",
+  "4W-12": "healthy_sleep",
+  "2E-01": "nicu",
+  "2E-02": "nicu_presepsis",
+  "2E-03": "nicu",
+  "2E-04": "nicu",
+  "2E-05": "nicu",
+  "2E-06": "nicu_presepsis",
+  "2E-07": "nicu",
+  "2E-08": "nicu",
+  "2E-09": "nicu",
+  "2E-10": "nicu",
+  "2E-11": "nicu",
+  "2E-12": "nicu",
+};
+
+export const DEMO_DEVICE_MODEL = "Larkspur demo monitor LM-2 (fictional)";
+export const DEMO_DEVICE_FIRMWARE = "2.4.1";
+/** The device at bed "4W-01" is "LVG-4W-01". */
+export const demoDeviceSerial = (bed: string) => `LVG-${bed}`;
+/** Where the device simulator serves each device's stream. */
+export const simulatorStreamUrl = (port: number, serial: string) => `http://127.0.0.1:${port}/devices/${serial}/stream`;
+export const DEFAULT_SIMULATOR_PORT = 3200;
+/** Demo devices are assigned to their beds from this many hours before seeding (covers the backfilled night). */
+export const DEMO_ASSIGNED_HOURS_AGO = 72;

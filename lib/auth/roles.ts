@@ -25,6 +25,8 @@ export const PERMISSIONS = {
   "people.manage": ["admin"],
   /** Audit trail and chain check (read-only). */
   "audit.view": ["quality"],
+  /** Start a computation run by hand (the scheduler uses its own secret). */
+  "jobs.run": ["admin"],
 } as const satisfies Record<string, readonly Role[]>;
 export type Permission = keyof typeof PERMISSIONS;
 

@@ -3,10 +3,16 @@
 // running app answers as this table says for every role and for signed-out callers.
 import type { Permission } from "./roles";
 
-export type Access =
+export type Access = (
   | { kind: "public" }
   | { kind: "signed_in" }
-  | { kind: "permission"; permission: Permission; unitParam?: string };
+  | { kind: "permission"; permission: Permission; unitParam?: string }
+) & {
+  /** HTTP method the route answers, when not GET (route handlers only). */
+  method?: "POST";
+  /** An event stream that stays open: callers check the status line only. */
+  streaming?: true;
+};
 
 /** Pages and route handlers, keyed by their App Router path (route groups removed). */
 export const ROUTE_ACCESS: Record<string, Access> = {
@@ -21,6 +27,10 @@ export const ROUTE_ACCESS: Record<string, Access> = {
   "/api/health": { kind: "public" },
   "/api/auth/[...nextauth]": { kind: "public" },
   "/api/units/[unitId]/census": { kind: "permission", permission: "census.view", unitParam: "unitId" },
+  // Events are filtered per unit inside the handler.
+  "/api/live": { kind: "signed_in", streaming: true },
+  // Also open to the scheduler's secret header, checked by the handler itself.
+  "/api/jobs/compute": { kind: "permission", permission: "jobs.run", method: "POST" },
 };
 
 /** Server actions, keyed by exported name. */

@@ -102,3 +102,163 @@ declare module "knex/types/tables" {
     audit_events: Knex.CompositeTableType<AuditEventRow, AuditEventInsert, never>;
   }
 }
+
+// ---- live pipeline (migrations/20261201000300_live_pipeline.ts) ----
+export const DEVICES = "devices";
+export const DEVICE_ASSIGNMENTS = "device_assignments";
+export const BEATS = "beats";
+export const DEVICE_STREAM_STATUS = "device_stream_status";
+export const INDEX_WINDOWS = "index_windows";
+export const COMPUTATION_PARAMS = "computation_params";
+export const BASELINES = "baselines";
+export const RULE_SETS = "rule_sets";
+export const FLAGS = "flags";
+export const COMPUTE_RUNS = "compute_runs";
+
+export type DeviceStatus = "active" | "maintenance" | "retired";
+export interface DeviceRow {
+  id: string;
+  serial: string;
+  model: string;
+  firmware: string;
+  timestamp_resolution_ms: number;
+  stream_url: string;
+  stream_token_hash: string;
+  stream_token_enc: string;
+  token_rotated_at: Date;
+  status: DeviceStatus;
+  created_at: Date;
+  updated_at: Date;
+}
+export type DeviceInsert = Omit<DeviceRow, "id" | "created_at" | "updated_at" | "token_rotated_at" | "status"> &
+  Partial<Pick<DeviceRow, "status" | "token_rotated_at">>;
+
+export interface DeviceAssignmentRow {
+  id: string;
+  device_id: string;
+  bed_id: string;
+  assigned_from: Date;
+  assigned_to: Date | null;
+  assigned_by: string | null;
+}
+export type DeviceAssignmentInsert = Omit<DeviceAssignmentRow, "id">;
+
+export interface BeatRow {
+  device_id: string;
+  seq: string; // bigint
+  beat_at: Date;
+  device_time: Date;
+  received_at: Date;
+  rr_ms: number;
+  beat_type: "N" | "V" | "S" | "P" | "?";
+  quality: number;
+  lead_off: boolean;
+}
+export type BeatInsert = Omit<BeatRow, "seq" | "received_at"> & { seq: number | string; received_at?: Date };
+
+export interface DeviceStreamStatusRow {
+  device_id: string;
+  connected: boolean;
+  last_seq: string | null;
+  last_seen_at: Date | null;
+  last_beat_at: Date | null;
+  gaps: number;
+  missing_seqs: string;
+  duplicates: number;
+  malformed: number;
+  malformed_by_kind: Record<string, number>;
+  reconnects: number;
+  clock_offset_ms: number | null;
+  lead_off: boolean;
+  last_error: string | null;
+  updated_at: Date;
+}
+
+export type WindowKind = "short" | "long";
+export interface IndexWindowRow {
+  id: string;
+  stay_id: string;
+  kind: WindowKind;
+  window_start: Date;
+  window_end: Date;
+  algorithm_version: string;
+  params_hash: string;
+  grade: "good" | "limited" | "unusable";
+  quality: Record<string, unknown>;
+  values: Record<string, number | null> | null;
+  reasons: Record<string, string>;
+  mse: (number | null)[] | null;
+  baseline_delta: Record<string, number | null> | null;
+  compute_run_id: string | null;
+  computed_at: Date;
+}
+export type IndexWindowInsert = Omit<IndexWindowRow, "id" | "computed_at">;
+
+export interface BaselineRow {
+  stay_id: string;
+  index_key: string;
+  algorithm_version: string;
+  median: number | null;
+  spread: number | null;
+  n_windows: number;
+  from_at: Date;
+  to_at: Date;
+  computed_at: Date;
+}
+
+export interface RuleSetRow {
+  id: string;
+  unit_id: string;
+  version: number;
+  name: string;
+  rules: unknown;
+  is_default: boolean;
+  note: string | null;
+  created_by: string | null;
+  created_at: Date;
+}
+
+export type FlagState = "open" | "acknowledged" | "escalated" | "resolved";
+export interface FlagRow {
+  id: string;
+  stay_id: string;
+  unit_id: string;
+  rule_set_id: string;
+  rule_set_version: number;
+  rule_id: string;
+  severity: "watch" | "review";
+  state: FlagState;
+  condition_from: Date;
+  condition_to: Date | null;
+  raised_at: Date;
+  previous_flag_id: string | null;
+  details: Record<string, unknown>;
+}
+
+export interface ComputeRunRow {
+  id: string;
+  started_at: Date;
+  finished_at: Date | null;
+  algorithm_version: string;
+  trigger: "scheduler" | "admin" | "test";
+  status: "running" | "done" | "failed" | "skipped";
+  stays: number;
+  windows: number;
+  flags_raised: number;
+  duration_ms: number | null;
+  error: string | null;
+}
+
+declare module "knex/types/tables" {
+  interface Tables {
+    devices: Knex.CompositeTableType<DeviceRow, DeviceInsert, Partial<Omit<DeviceRow, "id" | "created_at">>>;
+    device_assignments: Knex.CompositeTableType<DeviceAssignmentRow, DeviceAssignmentInsert, Partial<DeviceAssignmentInsert>>;
+    beats: Knex.CompositeTableType<BeatRow, BeatInsert, never>;
+    device_stream_status: Knex.CompositeTableType<DeviceStreamStatusRow, Partial<DeviceStreamStatusRow> & { device_id: string }, Partial<DeviceStreamStatusRow>>;
+    index_windows: Knex.CompositeTableType<IndexWindowRow, IndexWindowInsert, Partial<IndexWindowInsert>>;
+    baselines: Knex.CompositeTableType<BaselineRow, Omit<BaselineRow, "computed_at">, Partial<BaselineRow>>;
+    rule_sets: Knex.CompositeTableType<RuleSetRow, Omit<RuleSetRow, "id" | "created_at" | "is_default" | "note"> & Partial<Pick<RuleSetRow, "is_default" | "note">>, never>;
+    flags: Knex.CompositeTableType<FlagRow, Omit<FlagRow, "id" | "raised_at" | "state" | "previous_flag_id" | "details"> & Partial<Pick<FlagRow, "state" | "previous_flag_id" | "details" | "raised_at">>, Partial<FlagRow>>;
+    compute_runs: Knex.CompositeTableType<ComputeRunRow, Pick<ComputeRunRow, "algorithm_version" | "trigger"> & Partial<ComputeRunRow>, Partial<ComputeRunRow>>;
+  }
+}

@@ -25,6 +25,7 @@ describe("demo seed", () => {
       stays: DEMO_STAYS.length,
       users: DEMO_PEOPLE.length,
       grants: DEMO_PEOPLE.reduce((n, p) => n + p.grants.length, 0),
+      devices: DEMO_UNITS.length * BEDS_PER_UNIT,
     });
     const second = await seed(db);
     expect(Object.values(second.inserted).every((n) => n === 0)).toBe(true);

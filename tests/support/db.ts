@@ -30,7 +30,7 @@ export const connect = (url: string): Knex =>
   knex({ client: config.client, connection: url, pool: { min: 0, max: 5 }, migrations });
 
 /** A fresh, migrated database owned by the app role, dropped by the returned cleanup. */
-export async function scratchDatabase(): Promise<{ db: Knex; superuser: Knex; cleanup: () => Promise<void> }> {
+export async function scratchDatabase(): Promise<{ db: Knex; superuser: Knex; url: string; cleanup: () => Promise<void> }> {
   const superUrl = new URL(requireEnv("CORVANE_TEST_SUPERUSER_URL"));
   const name = `corvane_scratch_${randomBytes(4).toString("hex")}`;
   const admin = connect(superUrl.toString());
@@ -44,6 +44,7 @@ export async function scratchDatabase(): Promise<{ db: Knex; superuser: Knex; cl
   return {
     db,
     superuser,
+    url: appUrl.toString(),
     cleanup: async () => {
       await db.destroy();
       await superuser.destroy();

@@ -1,0 +1,317 @@
+// One simulated bedside device: its seed, its clock, and the records it sends (lib/streaming/protocol.ts).
+// prepareNight is pure — (device, night block) in, the block's records in sending order out — so a device restarted
+// on the same day sends the same records with the same seqs. SimulatedDevice walks through the prepared records as
+// simulated time passes and keeps what it sent in a RecordStore for readers that resume.
+import { createHash } from "node:crypto";
+import { createRng } from "@/lib/engine/random";
+import { quantiseBeats, type RhythmLabel } from "@/lib/engine/simulate";
+import { subSeed } from "@/lib/engine/simulate/types";
+import { BEAT_TYPES } from "@/lib/streaming/protocol";
+import type { DemoScenario } from "@/seeds/demo-data";
+import { deviceClock } from "./clock";
+import { nextNightBlock, nightBlockAt, type NightBlock } from "./night";
+import { FAULT, NO_LABEL, packFlags, RecordStore, RHYTHMS, STATUS, TRUTH_LABELS } from "./records";
+import { DRIFT_CLOCK, planNight, RESEND_COUNT } from "./scenarios";
+
+export interface SimulatedDeviceConfig {
+  serial: string;
+  /** The bearer token a reader must present. */
+  token: string;
+  scenario: DemoScenario;
+  /** The unit's IANA zone: nights run from 19:00 to 19:00 local. */
+  timeZone: string;
+  /** Resolution of the device's timestamps, ms (1, 1000/128, 1000/1024, …). */
+  resolutionMs: number;
+}
+
+/** A device's seed: the first 32 bits of SHA-256 of its serial. */
+function deviceSeed(serial: string): number {
+  return createHash("sha256").update(serial, "utf8").digest().readUInt32BE(0);
+}
+
+const OP_BEAT = 0;
+const OP_STATUS = 1;
+const OP_RESEND = 2;
+/** While the leads are off the device repeats its lead-off status this often (our choice, cp). */
+const LEAD_OFF_REPEAT_MS = 30_000;
+/** Smallest and largest timestamp resolution accepted, ms: beat intervals are kept as 16-bit tick counts. */
+const RESOLUTION_RANGE_MS = [0.2, 100] as const;
+const MAX_RR_MS = 10_000;
+const RESEND_STREAM = 201;
+/** Fewest sent records worth copying the rest of a night to free them. */
+const COMPACT_MIN = 16_384;
+
+/** The records of one night block, in the order the device sends them. */
+export interface PreparedNight {
+  block: NightBlock;
+  length: number;
+  /** OP_BEAT, OP_STATUS or OP_RESEND (re-send the last `quality` records). */
+  op: Uint8Array;
+  /** True time, whole ms since block.startMs: when the record is sent. */
+  tRelMs: Uint32Array;
+  /** Device time = deviceOrigin + tDeviceTicks × resolution (device clock, on its grid). */
+  deviceOrigin: number;
+  tDeviceTicks: Int32Array;
+  rrTicks: Uint16Array;
+  quality: Uint8Array;
+  flags: Uint8Array;
+  label: Uint8Array;
+  faults: Uint8Array;
+}
+
+const RHYTHM_CODE: Record<RhythmLabel, number> = {
+  sinus: RHYTHMS.indexOf("sinus"),
+  af: RHYTHMS.indexOf("af"),
+  paced: RHYTHMS.indexOf("paced"),
+  // The protocol has no flutter label; the scenarios here do not make flutter.
+  flutter: RHYTHMS.indexOf("unknown"),
+};
+
+function assertDeviceConfig(c: SimulatedDeviceConfig): void {
+  if (!c.serial) throw new RangeError("a device needs a serial");
+  if (!c.token) throw new RangeError(`device ${c.serial}: empty stream token`);
+  if (!(c.resolutionMs >= RESOLUTION_RANGE_MS[0] && c.resolutionMs <= RESOLUTION_RANGE_MS[1])) {
+    throw new RangeError(`device ${c.serial}: timestamp resolution must be ${RESOLUTION_RANGE_MS[0]}–${RESOLUTION_RANGE_MS[1]} ms, got ${c.resolutionMs}`);
+  }
+}
+
+/**
+ * The records device `config` sends over `block`: the scenario's beats (lib/simulator/scenarios.ts), moved onto the
+ * device clock (offset, drift and the nightly correction step) and quantised to its resolution with the engine's
+ * quantiseBeats; status records for lead-off (at its start, every 30 s while it lasts, and when it ends) and, on
+ * devices with a rhythm detector, at each rhythm change; network resends. A beat whose quantised interval is 0 (two
+ * detections inside one clock tick, possible only at the end of a motion burst) is not sent: the next interval
+ * already spans it.
+ */
+export function prepareNight(config: SimulatedDeviceConfig, block: NightBlock): PreparedNight {
+  assertDeviceConfig(config);
+  const res = config.resolutionMs;
+  const durationS = (block.endMs - block.startMs) / 1000;
+  const seed = subSeed(deviceSeed(config.serial), block.dayNumber);
+  const origin = Math.floor(block.startMs / res) * res;
+  const lead = block.startMs - origin;
+  const plan = planNight(config.scenario, seed, durationS, { resolutionMs: res, blockStartPhaseMs: lead });
+  const clock = deviceClock(
+    {
+      offsetMs: plan.clockOffsetMs,
+      driftPpm: plan.clockDriftPpm,
+      correctionLocal: plan.clockDriftPpm !== 0 ? DRIFT_CLOCK.correctionLocal : null,
+      timeZone: config.timeZone,
+    },
+    block.startMs,
+    block.endMs,
+  );
+  const s = plan.series;
+  const n = s.rr.length;
+
+  // Device clock seconds since `origin`: the beat's true time plus the clock's offset at that moment. The device
+  // times its intervals on its own clock, so they stretch with the drift; a correction step breaks contiguity and
+  // quantiseBeats then rounds that one interval on its own, as a device does (its intervals ignore clock steps).
+  const rate = 1 + plan.clockDriftPpm * 1e-6;
+  const devTimes = new Float64Array(n);
+  const devRr = new Float64Array(n);
+  for (let k = 0; k < n; k++) {
+    const rel = s.times[k]! * 1000;
+    devTimes[k] = (lead + rel + clock.offsetAt(block.startMs + rel)) / 1000;
+    devRr[k] = s.rr[k]! * rate;
+  }
+  const q = quantiseBeats({ ...s, times: devTimes, rr: devRr }, res);
+
+  // Everything other than beats, in true time (ms since block start); sorted and merged below.
+  const extras: { t: number; op: number; leadOff: boolean; rhythm: number; count: number }[] = [];
+  for (const g of s.gaps) {
+    if (g.kind !== "lead_off") continue;
+    for (let t = g.startS * 1000; t < g.endS * 1000; t += LEAD_OFF_REPEAT_MS) extras.push({ t, op: OP_STATUS, leadOff: true, rhythm: 0, count: 0 });
+    extras.push({ t: g.endS * 1000, op: OP_STATUS, leadOff: false, rhythm: 0, count: 0 });
+  }
+  if (plan.reportsRhythm && n > 0) {
+    extras.push({ t: s.times[0]! * 1000 - s.rr[0]!, op: OP_STATUS, leadOff: false, rhythm: RHYTHM_CODE[s.rhythm[0]!], count: 0 });
+    for (let k = 1; k < n; k++) {
+      if (s.rhythm[k] !== s.rhythm[k - 1]) {
+        // The new rhythm's first interval starts at the previous beat: say so just after it.
+        extras.push({ t: s.times[k - 1]! * 1000 + 1, op: OP_STATUS, leadOff: false, rhythm: RHYTHM_CODE[s.rhythm[k]!], count: 0 });
+      }
+    }
+  }
+  if (plan.resendsPerHour > 0) {
+    const rng = createRng(subSeed(seed, RESEND_STREAM));
+    const rate = plan.resendsPerHour / 3_600_000;
+    for (let t = -Math.log(1 - rng.next()) / rate; t < durationS * 1000; t += -Math.log(1 - rng.next()) / rate) {
+      extras.push({ t, op: OP_RESEND, leadOff: false, rhythm: 0, count: RESEND_COUNT[0] + rng.int(RESEND_COUNT[1] - RESEND_COUNT[0] + 1) });
+    }
+  }
+  extras.sort((a, b) => a.t - b.t);
+
+  // First beat after each gap.
+  const afterGap = new Map<number, number>();
+  {
+    let k = 0;
+    for (const g of [...s.gaps].sort((a, b) => a.startS - b.startS)) {
+      while (k < n && s.times[k]! <= g.endS) k++;
+      if (k < n) afterGap.set(k, g.kind === "dropout" ? FAULT.afterDropout : FAULT.afterLeadOff);
+    }
+  }
+
+  const cap = n + extras.length;
+  const out: PreparedNight = {
+    block,
+    length: 0,
+    op: new Uint8Array(cap),
+    tRelMs: new Uint32Array(cap),
+    deviceOrigin: origin,
+    tDeviceTicks: new Int32Array(cap),
+    rrTicks: new Uint16Array(cap),
+    quality: new Uint8Array(cap),
+    flags: new Uint8Array(cap),
+    label: new Uint8Array(cap),
+    faults: new Uint8Array(cap),
+  };
+  const corrections = clock.corrections.map((c) => c - block.startMs);
+  let nextCorrection = 0;
+  const put = (t: number, op: number, ticks: number, rrTicks: number, quality: number, flags: number, label: number, faults: number) => {
+    const i = out.length++;
+    let f = faults;
+    if (op !== OP_RESEND && nextCorrection < corrections.length && t >= corrections[nextCorrection]!) {
+      f |= FAULT.clockStep;
+      while (nextCorrection < corrections.length && t >= corrections[nextCorrection]!) nextCorrection++;
+    }
+    out.op[i] = op;
+    out.tRelMs[i] = Math.max(0, Math.floor(t));
+    out.tDeviceTicks[i] = ticks;
+    out.rrTicks[i] = rrTicks;
+    out.quality[i] = quality;
+    out.flags[i] = flags;
+    out.label[i] = label;
+    out.faults[i] = f;
+  };
+  const deviceTicks = (t: number) => Math.round((lead + t + clock.offsetAt(block.startMs + t)) / res);
+  let e = 0;
+  for (let k = 0; k < n; k++) {
+    const t = s.times[k]! * 1000;
+    while (e < extras.length && extras[e]!.t <= t) {
+      const x = extras[e++]!;
+      if (x.op === OP_RESEND) put(x.t, OP_RESEND, 0, 0, x.count, 0, NO_LABEL, 0);
+      else put(x.t, OP_STATUS, deviceTicks(x.t), 0, 0, packFlags(STATUS, x.leadOff, x.rhythm), NO_LABEL, 0);
+    }
+    const rrTicks = Math.round(q.rr[k]! / res);
+    if (rrTicks <= 0) continue;
+    if (rrTicks * res > MAX_RR_MS) throw new RangeError(`device ${config.serial}: generated interval ${rrTicks * res} ms exceeds ${MAX_RR_MS} ms`);
+    const type = BEAT_TYPES.indexOf(q.beatType[k]!);
+    put(
+      t,
+      OP_BEAT,
+      Math.round((q.times[k]! * 1000) / res),
+      rrTicks,
+      Math.floor(q.quality[k]! * 100),
+      packFlags(type, q.leadOff[k] === 1, 0),
+      TRUTH_LABELS.indexOf(q.truth[k]!),
+      afterGap.get(k) ?? 0,
+    );
+  }
+  for (; e < extras.length; e++) {
+    const x = extras[e]!;
+    if (x.t > durationS * 1000) break;
+    if (x.op === OP_RESEND) put(x.t, OP_RESEND, 0, 0, x.count, 0, NO_LABEL, 0);
+    else put(x.t, OP_STATUS, deviceTicks(x.t), 0, 0, packFlags(STATUS, x.leadOff, x.rhythm), NO_LABEL, 0);
+  }
+  return out;
+}
+
+/**
+ * A device sending its records as simulated time passes. `begin(fromMs)` places it at true time fromMs (the start
+ * of a backfill, or now); `advanceTo(t)` sends every record up to t, preparing the next night when the current one
+ * ends; `prepareAhead` lets a caller prepare the next night early, at a moment of its choosing.
+ */
+export class SimulatedDevice {
+  readonly store: RecordStore;
+  private current: PreparedNight | null = null;
+  private upcoming: PreparedNight | null = null;
+  private cursor = 0;
+
+  constructor(
+    readonly config: SimulatedDeviceConfig,
+    keepTruth: boolean,
+  ) {
+    assertDeviceConfig(config);
+    this.store = new RecordStore(config.resolutionMs, keepTruth);
+  }
+
+  /** Starts at true time `fromMs`: the first record sent is the first one at or after it. */
+  begin(fromMs: number): void {
+    if (this.current) throw new Error(`device ${this.config.serial} has already begun`);
+    this.current = prepareNight(this.config, nightBlockAt(fromMs, this.config.timeZone));
+    const rel = fromMs - this.current.block.startMs;
+    while (this.cursor < this.current.length && this.current.tRelMs[this.cursor]! < rel) this.cursor++;
+  }
+
+  /** Sends every record with true time ≤ t; returns how many were sent. */
+  advanceTo(t: number): number {
+    let c = this.current;
+    if (!c) throw new Error(`device ${this.config.serial} has not begun`);
+    const before = this.store.lastSeq;
+    for (;;) {
+      const rel = t - c.block.startMs;
+      while (this.cursor < c.length && c.tRelMs[this.cursor]! <= rel) this.send(c, this.cursor++);
+      if (this.cursor < c.length || t < c.block.endMs) break;
+      c = this.current = this.upcoming ?? prepareNight(this.config, nextNightBlock(c.block, this.config.timeZone));
+      this.upcoming = null;
+      this.cursor = 0;
+    }
+    this.dropSent();
+    return this.store.lastSeq - before;
+  }
+
+  /** Frees the records of the current night already sent (the store has them), once they are a quarter of it:
+   *  a backfill sends most of a night at once, and live sending walks through the rest over a day. */
+  private dropSent(): void {
+    const c = this.current!;
+    if (this.cursor < COMPACT_MIN || this.cursor < c.length / 4) return;
+    const from = this.cursor;
+    this.current = {
+      block: c.block,
+      length: c.length - from,
+      op: c.op.slice(from),
+      tRelMs: c.tRelMs.slice(from),
+      deviceOrigin: c.deviceOrigin,
+      tDeviceTicks: c.tDeviceTicks.slice(from),
+      rrTicks: c.rrTicks.slice(from),
+      quality: c.quality.slice(from),
+      flags: c.flags.slice(from),
+      label: c.label.slice(from),
+      faults: c.faults.slice(from),
+    };
+    this.cursor = 0;
+  }
+
+  /** True time at which the current night ends, epoch ms. */
+  get nightEndsAt(): number {
+    if (!this.current) throw new Error(`device ${this.config.serial} has not begun`);
+    return this.current.block.endMs;
+  }
+
+  get hasUpcoming(): boolean {
+    return this.upcoming !== null;
+  }
+
+  /** Prepares the next night now, so that crossing into it later costs nothing. */
+  prepareAhead(): void {
+    if (!this.current) throw new Error(`device ${this.config.serial} has not begun`);
+    if (!this.upcoming) this.upcoming = prepareNight(this.config, nextNightBlock(this.current.block, this.config.timeZone));
+  }
+
+  private send(c: PreparedNight, i: number): void {
+    if (c.op[i] === OP_RESEND) {
+      this.store.resendLast(c.quality[i]!);
+      return;
+    }
+    this.store.append({
+      tDevice: c.deviceOrigin + c.tDeviceTicks[i]! * this.config.resolutionMs,
+      rrTicks: c.rrTicks[i]!,
+      quality: c.quality[i]!,
+      flags: c.flags[i]!,
+      tTrue: c.block.startMs + c.tRelMs[i]!,
+      label: c.label[i]!,
+      faults: c.faults[i]!,
+    });
+  }
+}

@@ -1,0 +1,77 @@
+// Which devices the simulator plays: every device with an open assignment to a bed, read from PostgreSQL once at
+// start. Each gets its bed's demo scenario (seeds/demo-data.ts) and its unit's time zone; neonatal beds always
+// stream a neonatal scenario.
+import type { Knex } from "knex";
+import { decryptStreamToken, tokenMatches } from "@/lib/devices/stream-token";
+import type { UnitKind } from "@/lib/db/tables";
+import { DEMO_BED_SCENARIOS, type DemoScenario } from "@/seeds/demo-data";
+import type { SimulatedDeviceConfig } from "./device";
+import { NEONATAL_SCENARIOS } from "./scenarios";
+
+/** A bed's scenario: its demo listing, else healthy sleep; a neonatal bed streams "nicu" unless listed as a
+ *  neonatal scenario (the adult recipes are not neonatal physiology). */
+export function scenarioForBed(bedLabel: string, unitKind: UnitKind): DemoScenario {
+  const listed: DemoScenario | undefined = DEMO_BED_SCENARIOS[bedLabel];
+  if (unitKind === "neonatal") return listed && NEONATAL_SCENARIOS.includes(listed) ? listed : "nicu";
+  return listed ?? "healthy_sleep";
+}
+
+interface Row {
+  serial: string;
+  stream_token_enc: string;
+  stream_token_hash: string;
+  timestamp_resolution_ms: number;
+  stream_url: string;
+  bed_label: string;
+  unit_kind: UnitKind;
+  time_zone: string;
+}
+
+export interface LoadedDevice extends SimulatedDeviceConfig {
+  bedLabel: string;
+  /** Where the registry says this device serves its stream (to compare with the simulator's port). */
+  streamUrl: string;
+}
+
+/**
+ * Devices with an open bed assignment, ordered by serial, with their stream tokens unsealed (NEXTAUTH_SECRET, or
+ * `secret`). Throws, naming the device, when a token cannot be unsealed or does not match its stored hash.
+ */
+export async function loadSimulatedDevices(db: Knex, secret?: string): Promise<LoadedDevice[]> {
+  const rows: Row[] = await db("devices as d")
+    .join("device_assignments as a", "a.device_id", "d.id")
+    .join("beds as b", "b.id", "a.bed_id")
+    .join("units as u", "u.id", "b.unit_id")
+    .whereNull("a.assigned_to")
+    .select(
+      "d.serial",
+      "d.stream_token_enc",
+      "d.stream_token_hash",
+      "d.timestamp_resolution_ms",
+      "d.stream_url",
+      "b.label as bed_label",
+      "u.kind as unit_kind",
+      "u.time_zone",
+    )
+    .orderBy("d.serial");
+  return rows.map((row) => {
+    let token: string;
+    try {
+      token = decryptStreamToken(row.stream_token_enc, secret);
+    } catch (err) {
+      throw new Error(
+        `device ${row.serial}: its stream token cannot be unsealed (${(err as Error).message}); was the database seeded with another NEXTAUTH_SECRET?`,
+      );
+    }
+    if (!tokenMatches(token, row.stream_token_hash)) throw new Error(`device ${row.serial}: the sealed stream token does not match its stored hash`);
+    return {
+      serial: row.serial,
+      token,
+      scenario: scenarioForBed(row.bed_label, row.unit_kind),
+      timeZone: row.time_zone,
+      resolutionMs: Number(row.timestamp_resolution_ms),
+      bedLabel: row.bed_label,
+      streamUrl: row.stream_url,
+    };
+  });
+}

@@ -1,0 +1,80 @@
+// The scheduler process, started by npm start beside the app: every minute (a pg-boss 10 cron schedule in
+// PostgreSQL, so ticks survive restarts and several schedulers never double up), and once at start-up, it POSTs to
+// the app's compute route on loopback with the scheduler secret. The computation itself runs in the app
+// (lib/compute/run.ts); this process only keeps time.
+import PgBoss from "pg-boss";
+import config from "@/knexfile";
+import { SCHEDULER_SECRET_HEADER } from "@/lib/compute/config";
+import { logger } from "@/lib/log";
+
+const QUEUE = "corvane-compute-tick";
+/** Longest a run may take before the tick gives up waiting (a first catch-up over several nights is the long case). */
+const RUN_TIMEOUT_MS = 15 * 60_000;
+/** The start-up run waits this long at most for the app to answer (npm start starts the app first). */
+const STARTUP_WAIT_MS = 120_000;
+
+const port = Number(process.env.PORT ?? 3000);
+if (!Number.isInteger(port) || port < 1 || port > 65_535) throw new Error(`PORT must be a port number, got "${process.env.PORT}"`);
+const secret = process.env.CORVANE_SCHEDULER_SECRET;
+if (!secret || secret.length < 32) {
+  logger.fatal("CORVANE_SCHEDULER_SECRET is not set or shorter than 32 characters: the scheduler cannot call the compute route");
+  process.exit(1);
+}
+const computeUrl = `http://127.0.0.1:${port}/api/jobs/compute`;
+const connectionString = typeof config.connection === "string" ? config.connection : undefined;
+if (!connectionString) throw new Error("knexfile.ts must give DATABASE_URL as a connection string");
+
+let inFlight: AbortController | null = null;
+
+/** One call of the compute route; throws on anything but a finished run (done or skipped). */
+async function tick(reason: "schedule" | "start-up"): Promise<void> {
+  const started = Date.now();
+  inFlight = new AbortController();
+  const timeout = setTimeout(() => inFlight?.abort(new Error(`no answer within ${RUN_TIMEOUT_MS / 1000} s`)), RUN_TIMEOUT_MS);
+  try {
+    const res = await fetch(computeUrl, { method: "POST", headers: { [SCHEDULER_SECRET_HEADER]: secret! }, signal: inFlight.signal });
+    const body = (await res.json().catch(() => null)) as { runId?: string; status?: string; windows?: number; flagsRaised?: number; error?: string } | null;
+    if (!res.ok) throw new Error(`compute route answered ${res.status}${body?.error ? `: ${body.error}` : ""}`);
+    logger.info({ reason, runId: body?.runId, status: body?.status, windows: body?.windows, flagsRaised: body?.flagsRaised, ms: Date.now() - started }, "compute tick");
+  } finally {
+    clearTimeout(timeout);
+    inFlight = null;
+  }
+}
+
+async function appAnswers(): Promise<boolean> {
+  try {
+    return (await fetch(`http://127.0.0.1:${port}/api/health`, { signal: AbortSignal.timeout(5_000) })).status < 500;
+  } catch {
+    return false;
+  }
+}
+
+const boss = new PgBoss({ connectionString, schema: "pgboss", application_name: "corvane-scheduler", max: 3 });
+boss.on("error", (err) => logger.error({ err }, "pg-boss error"));
+await boss.start();
+// A "stately" queue holds at most one waiting and one running tick: a slow run never builds a backlog.
+await boss.createQueue(QUEUE, { name: QUEUE, policy: "stately", retryLimit: 0, expireInSeconds: RUN_TIMEOUT_MS / 1000 + 60 });
+await boss.schedule(QUEUE, "* * * * *", {}, { tz: "UTC" });
+await boss.work(QUEUE, { pollingIntervalSeconds: 2, batchSize: 1 }, async () => tick("schedule"));
+logger.info({ queue: QUEUE, computeUrl }, "scheduler running: compute every minute");
+
+let stopping = false;
+const stop = async (signal: string) => {
+  if (stopping) return;
+  stopping = true;
+  logger.info({ signal }, "scheduler stopping");
+  inFlight?.abort(new Error("scheduler stopping"));
+  await boss.stop({ graceful: true, wait: true, timeout: 10_000 }).catch((err) => logger.error({ err }, "pg-boss did not stop cleanly"));
+  process.exit(0);
+};
+process.on("SIGINT", () => void stop("SIGINT"));
+process.on("SIGTERM", () => void stop("SIGTERM"));
+
+// The start-up run, so a restarted app catches up at once rather than at the next whole minute.
+const deadline = Date.now() + STARTUP_WAIT_MS;
+while (!stopping && !(await appAnswers())) {
+  if (Date.now() > deadline) break;
+  await new Promise((r) => setTimeout(r, 2_000));
+}
+if (!stopping) await tick("start-up").catch((err) => logger.error({ err }, "start-up compute run failed; the schedule goes on"));
