@@ -134,31 +134,22 @@ ensure_database() {
   fi
 }
 
-# NEXTAUTH_SECRET: from the environment, else one generated once per checkout (git-ignored).
-ensure_secret() {
-  if [ -z "${NEXTAUTH_SECRET:-}" ]; then
-    mkdir -p "$ROOT/.corvane"
-    if [ ! -s "$ROOT/.corvane/nextauth-secret" ]; then
-      node -e 'process.stdout.write(require("crypto").randomBytes(32).toString("base64url"))' > "$ROOT/.corvane/nextauth-secret"
-      chmod 600 "$ROOT/.corvane/nextauth-secret"
-    fi
-    NEXTAUTH_SECRET="$(cat "$ROOT/.corvane/nextauth-secret")"
-    export NEXTAUTH_SECRET
+# ensure_generated_secret VAR FILE: VAR from the environment, else a random value generated once per checkout
+# into .corvane/FILE (git-ignored, mode 600) and reused, so sessions and the scheduler survive a restart.
+ensure_generated_secret() {
+  local var="$1" file="$ROOT/.corvane/$2"
+  [ -n "${!var:-}" ] && return 0
+  mkdir -p "$ROOT/.corvane"
+  if [ ! -s "$file" ]; then
+    node -e 'process.stdout.write(require("crypto").randomBytes(32).toString("base64url"))' > "$file"
+    chmod 600 "$file"
   fi
+  export "$var=$(cat "$file")"
 }
 
-# CORVANE_SCHEDULER_SECRET: lets the scheduler call the compute route; generated once per checkout like the above.
-ensure_scheduler_secret() {
-  if [ -z "${CORVANE_SCHEDULER_SECRET:-}" ]; then
-    mkdir -p "$ROOT/.corvane"
-    if [ ! -s "$ROOT/.corvane/scheduler-secret" ]; then
-      node -e 'process.stdout.write(require("crypto").randomBytes(32).toString("base64url"))' > "$ROOT/.corvane/scheduler-secret"
-      chmod 600 "$ROOT/.corvane/scheduler-secret"
-    fi
-    CORVANE_SCHEDULER_SECRET="$(cat "$ROOT/.corvane/scheduler-secret")"
-    export CORVANE_SCHEDULER_SECRET
-  fi
-}
+# NEXTAUTH_SECRET signs sessions; CORVANE_SCHEDULER_SECRET lets the scheduler call the compute route.
+ensure_secret() { ensure_generated_secret NEXTAUTH_SECRET nextauth-secret; }
+ensure_scheduler_secret() { ensure_generated_secret CORVANE_SCHEDULER_SECRET scheduler-secret; }
 
 # supervise NAME CMD…: runs CMD in the background and restarts it (after 2 s) if it exits on its own; a TERM or
 # INT to the supervisor stops the command and the supervisor. Appends the supervisor's PID to SUPERVISED.
