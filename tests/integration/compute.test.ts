@@ -13,6 +13,7 @@ import { ALGORITHM_VERSION } from "@/lib/engine/version";
 import { seed } from "@/seeds/01_demo";
 import { seedRuleSets } from "@/seeds/02_rule_sets";
 import { scratchDatabase } from "@/tests/support/db";
+import { insertTestBeats, makeTestStay } from "@/tests/support/stays";
 
 const MIN = 60_000;
 const HOUR = 3_600_000;
@@ -29,41 +30,9 @@ afterAll(async () => {
   await cleanup?.();
 });
 
-let beds = 0;
-/** A bed of a demo unit with a patient's (closed) stay and a device assigned to the bed from an hour before it. */
-async function makeStay(unitCode: "4W" | "2E", admittedAt: Date, dischargedAt: Date) {
-  beds += 1;
-  const label = `${unitCode}-T${beds}`;
-  const unit = await db("units").where({ code: unitCode }).first("id");
-  const [bed] = await db("beds").insert({ unit_id: unit!.id, label, sort_order: 100 + beds, active: true }).returning("id");
-  const [patient] = await db("patients").insert({ record_number: `TEST-${label}`, display_name: "Test, Synthetic", birth_date: null }).returning("id");
-  const [stay] = await db("stays").insert({ patient_id: patient!.id, bed_id: bed!.id, admitted_at: admittedAt, discharged_at: dischargedAt }).returning("id");
-  const [device] = await db("devices")
-    .insert({ serial: `TEST-${label}`, model: "test monitor", firmware: "0", timestamp_resolution_ms: 1, stream_url: "http://127.0.0.1:9/unused", stream_token_hash: "unused", stream_token_enc: "unused" })
-    .returning("id");
-  await db("device_assignments").insert({ device_id: device!.id, bed_id: bed!.id, assigned_from: new Date(admittedAt.getTime() - HOUR), assigned_to: null, assigned_by: null });
-  return { stayId: stay!.id as string, deviceId: device!.id as string };
-}
-
-/** Stores simulated beats (times in epoch s) for a device, as the ingest would: ms timestamps, float4 quality. Returns
- *  the series exactly as the compute job reads it back. `from` continues a device's sequence numbers. */
-async function insertBeats(deviceId: string, sim: SimulatedBeats, from = 0, to = sim.rr.length) {
-  const days = new Set<string>();
-  const rows = [];
-  for (let k = from; k < to; k++) {
-    const at = new Date(Math.round(sim.times[k]! * 1000));
-    days.add(at.toISOString().slice(0, 10));
-    rows.push({ device_id: deviceId, seq: k + 1, beat_at: at, device_time: at, rr_ms: sim.rr[k]!, beat_type: sim.beatType[k]!, quality: sim.quality[k]!, lead_off: sim.leadOff[k] === 1 });
-  }
-  for (const day of days) await db.raw("SELECT ensure_beats_partition(?::date)", [day]);
-  for (let i = 0; i < rows.length; i += 5000) await db("beats").insert(rows.slice(i, i + 5000));
-  return {
-    rr: Float64Array.from(rows, (r) => r.rr_ms),
-    times: Float64Array.from(rows, (r) => r.beat_at.getTime() / 1000),
-    quality: Float64Array.from(rows, (r) => Math.fround(r.quality)),
-    leadOff: Uint8Array.from(rows, (r) => (r.lead_off ? 1 : 0)),
-  };
-}
+const makeStay = async (unitCode: "4W" | "2E", admittedAt: Date, dischargedAt: Date) =>
+  makeTestStay(db, (await db("units").where({ code: unitCode }).first("id"))!.id, admittedAt, dischargedAt);
+const insertBeats = (deviceId: string, sim: SimulatedBeats, from?: number, to?: number) => insertTestBeats(db, deviceId, sim, from, to);
 
 const storedWindows = (stayId: string, kind: "short" | "long", version = ALGORITHM_VERSION) =>
   db("index_windows").where({ stay_id: stayId, kind, algorithm_version: version }).orderBy("window_start").select("*");

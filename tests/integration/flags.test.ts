@@ -14,6 +14,7 @@ import type { RuleSetDocument } from "@/lib/flags/rules.validation";
 import { seed } from "@/seeds/01_demo";
 import { DEFAULT_RULE_SET, seedRuleSets } from "@/seeds/02_rule_sets";
 import { scratchDatabase } from "@/tests/support/db";
+import { insertTestBeats, makeTestStay } from "@/tests/support/stays";
 
 const MIN = 60_000;
 const HOUR = 3_600_000;
@@ -30,29 +31,8 @@ afterAll(async () => {
   await cleanup?.();
 });
 
-let beds = 0;
-/** A bed of the unit with a patient's stay and a device assigned to the bed from an hour before it. */
-async function makeStay(unitId: string, admittedAt: Date, dischargedAt: Date) {
-  beds += 1;
-  const label = `T-${beds}`;
-  const [bed] = await db("beds").insert({ unit_id: unitId, label, sort_order: 100 + beds, active: true }).returning("id");
-  const [patient] = await db("patients").insert({ record_number: `TEST-F${beds}`, display_name: "Test, Synthetic", birth_date: null }).returning("id");
-  const [stay] = await db("stays").insert({ patient_id: patient!.id, bed_id: bed!.id, admitted_at: admittedAt, discharged_at: dischargedAt }).returning("id");
-  const [device] = await db("devices")
-    .insert({ serial: `TEST-F${beds}`, model: "test monitor", firmware: "0", timestamp_resolution_ms: 1, stream_url: "http://127.0.0.1:9/unused", stream_token_hash: "unused", stream_token_enc: "unused" })
-    .returning("id");
-  await db("device_assignments").insert({ device_id: device!.id, bed_id: bed!.id, assigned_from: new Date(admittedAt.getTime() - HOUR), assigned_to: null, assigned_by: null });
-  return { stayId: stay!.id as string, deviceId: device!.id as string };
-}
-
-async function insertBeats(deviceId: string, sim: SimulatedBeats) {
-  const rows = Array.from(sim.rr, (rr, k) => {
-    const at = new Date(Math.round(sim.times[k]! * 1000));
-    return { device_id: deviceId, seq: k + 1, beat_at: at, device_time: at, rr_ms: rr, beat_type: sim.beatType[k]!, quality: sim.quality[k]!, lead_off: sim.leadOff[k] === 1 };
-  });
-  for (const day of new Set(rows.map((r) => r.beat_at.toISOString().slice(0, 10)))) await db.raw("SELECT ensure_beats_partition(?::date)", [day]);
-  for (let i = 0; i < rows.length; i += 5000) await db("beats").insert(rows.slice(i, i + 5000));
-}
+const makeStay = (unitId: string, admittedAt: Date, dischargedAt: Date) => makeTestStay(db, unitId, admittedAt, dischargedAt);
+const insertBeats = (deviceId: string, sim: SimulatedBeats) => insertTestBeats(db, deviceId, sim);
 
 const unitId = async (code: string) => (await db("units").where({ code }).first("id"))!.id;
 const flagsOf = (stayId: string) => db("flags").where({ stay_id: stayId }).orderBy("condition_from").select("*");

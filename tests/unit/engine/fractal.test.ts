@@ -82,7 +82,7 @@ describe("DFA-1 of white noise against the exact result (DOMAIN §3.1 A5)", () =
       const observed = sums[i]! / SEEDS / SIGMA ** 2;
       expect(Math.abs(observed / a5(n) - 1)).toBeLessThan(A5_F2_REL_TOL);
     });
-    // The formula's own values as DOMAIN lists them (checks our transcription of A5).
+    // The formula's own values as DOMAIN lists them (checks that A5 was copied correctly).
     expect([4, 8, 16, 64].map(a5)).toEqual([0.2, 0.5, 1.05, 4.2625]);
   });
 
