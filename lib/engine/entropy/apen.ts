@@ -1,11 +1,9 @@
 // Approximate entropy (Pincus, Proc Natl Acad Sci USA 1991;88:2297).
-import { assertInteger, assertPositive, assertSeries } from "../assert";
-import { measured, notDefined, type Measured } from "../result";
+import { measured, type Measured } from "../result";
 import {
-  absoluteTolerance,
   conventionText,
-  matchLimit,
   matchTemplates,
+  prepareEntropy,
   type Comparison,
   type ToleranceUnit,
 } from "./templates";
@@ -73,20 +71,13 @@ export interface ApproximateEntropy {
  * @param x RR/NN intervals (ms) or any finite series.
  */
 export function approximateEntropy(x: Float64Array, options: ApproximateEntropyOptions = {}): Measured<ApproximateEntropy> {
-  assertSeries(x, "x");
-  const { m, r, rUnit, comparison } = { ...APEN_DEFAULTS, ...options };
-  assertInteger(m, "m", 1, 64);
-  assertPositive(r, "r");
-  const N = x.length;
-  const tol = absoluteTolerance(x, r, rUnit);
-  const params = { m, r, rUnit, comparison, sdDdof: 1, rAbsolute: tol.r, n: N };
+  const o = { ...APEN_DEFAULTS, ...options };
+  const { m, comparison } = o;
+  const prep = prepareEntropy("apen", x, o);
+  if (!prep.ok) return prep.result;
+  const { params, n: N, r } = prep;
 
-  if (N < m + 2) {
-    return notDefined("apen", params, `fewer than m + 2 = ${m + 2} points (N = ${N}): no pair of ${m + 1}-point templates`);
-  }
-  if (tol.r === null) return notDefined("apen", params, "zero variance: r = 0");
-
-  const { countM, countM1, extendable } = matchTemplates(x, m, matchLimit(tol.r, comparison));
+  const { countM, countM1, extendable } = matchTemplates(x, m, prep.limit);
   // C_i counts the template itself (Pincus's self-match), hence the + 1.
   const nM = N - m + 1;
   const nM1 = N - m;
@@ -102,7 +93,7 @@ export function approximateEntropy(x: Float64Array, options: ApproximateEntropyO
     apen: phiM - phiM1,
     phiM,
     phiM1,
-    r: tol.r,
+    r,
     m,
     n: N,
     convention: conventionText(comparison),

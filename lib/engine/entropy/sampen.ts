@@ -1,11 +1,9 @@
 // Sample entropy (Richman & Moorman, Am J Physiol Heart Circ Physiol 2000;278:H2039).
-import { assertInteger, assertPositive, assertSeries } from "../assert";
 import { measured, notDefined, type Measured } from "../result";
 import {
-  absoluteTolerance,
   conventionText,
-  matchLimit,
   matchTemplates,
+  prepareEntropy,
   type Comparison,
   type ToleranceUnit,
 } from "./templates";
@@ -68,20 +66,13 @@ export interface SampleEntropy {
  * @param x RR/NN intervals (ms) or any finite series.
  */
 export function sampleEntropy(x: Float64Array, options: SampleEntropyOptions = {}): Measured<SampleEntropy> {
-  assertSeries(x, "x");
-  const { m, r, rUnit, comparison } = { ...SAMPEN_DEFAULTS, ...options };
-  assertInteger(m, "m", 1, 64);
-  assertPositive(r, "r");
-  const N = x.length;
-  const tol = absoluteTolerance(x, r, rUnit);
-  const params = { m, r, rUnit, comparison, sdDdof: 1, rAbsolute: tol.r, n: N };
+  const o = { ...SAMPEN_DEFAULTS, ...options };
+  const { m, comparison } = o;
+  const prep = prepareEntropy("sampen", x, o);
+  if (!prep.ok) return prep.result;
+  const { params, n: N, r } = prep;
 
-  if (N < m + 2) {
-    return notDefined("sampen", params, `fewer than m + 2 = ${m + 2} points (N = ${N}): no pair of ${m + 1}-point templates`);
-  }
-  if (tol.r === null) return notDefined("sampen", params, "zero variance: r = 0");
-
-  const { a, b } = matchTemplates(x, m, matchLimit(tol.r, comparison));
+  const { a, b } = matchTemplates(x, m, prep.limit);
   const templates = N - m;
   if (b === 0) {
     return notDefined("sampen", params, `no template matches of length m = ${m} (B = 0 of ${templates} templates)`);
@@ -94,7 +85,7 @@ export function sampleEntropy(x: Float64Array, options: SampleEntropyOptions = {
     sampen: Math.log(b / a),
     a,
     b,
-    r: tol.r,
+    r,
     m,
     n: N,
     templates,

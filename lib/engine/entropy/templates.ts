@@ -13,6 +13,8 @@
 // neighbouring columns whose second points lie within r. For r = 0.2 SD on Gaussian-like data that is roughly
 // 0.02 · N²/2 pairs at m ≥ 2 (about 0.11 · N²/2 with the one-coordinate sort used for m = 1); the worst case (r wider
 // than the whole range, e.g. a nearly constant series) is N²/2. Memory O(N·m).
+import { assertInteger, assertPositive, assertSeries } from "../assert";
+import { notDefined, type Measured, type Params } from "../result";
 import { sd } from "../stats";
 
 /** How a template distance d is compared with the tolerance r. Richman & Moorman 2000 and Pincus 1991 use `<=`. */
@@ -54,6 +56,28 @@ export function absoluteTolerance(
   const s = x.length > 1 ? sd(x, 1) : 0;
   if (unit === "absolute") return { r, sd: s };
   return s > 0 ? { r: r * s, sd: s } : { r: null, sd: s };
+}
+
+/**
+ * The checks and set-up SampEn and ApEn share: validated options, the absolute tolerance, the recorded parameters,
+ * and the two cases where neither is defined (N < m + 2; SD = 0 with a relative r).
+ */
+export function prepareEntropy(
+  method: "sampen" | "apen",
+  x: Float64Array,
+  o: { m: number; r: number; rUnit: ToleranceUnit; comparison: Comparison },
+): { ok: true; params: Params; n: number; r: number; limit: number } | { ok: false; result: Measured<never> } {
+  assertSeries(x, "x");
+  assertInteger(o.m, "m", 1, 64);
+  assertPositive(o.r, "r");
+  const n = x.length;
+  const tol = absoluteTolerance(x, o.r, o.rUnit);
+  const params = { m: o.m, r: o.r, rUnit: o.rUnit, comparison: o.comparison, sdDdof: 1, rAbsolute: tol.r, n };
+  if (n < o.m + 2) {
+    return { ok: false, result: notDefined(method, params, `fewer than m + 2 = ${o.m + 2} points (N = ${n}): no pair of ${o.m + 1}-point templates`) };
+  }
+  if (tol.r === null) return { ok: false, result: notDefined(method, params, "zero variance: r = 0") };
+  return { ok: true, params, n, r: tol.r, limit: matchLimit(tol.r, o.comparison) };
 }
 
 /** Columns are this much wider than r, so that rounding in (x − min)/width can never put two points within r more
