@@ -70,15 +70,22 @@ fi
 supervise "ingest" "${NODE_TS[@]}" scripts/ingest.ts
 supervise "scheduler" "${NODE_TS[@]}" scripts/scheduler.ts
 
+DEMO_SIGNINS=""
+if [ "$CORVANE_DEMO_MODE" = 1 ]; then
+  # One short process for the demo's sign-ins, read from the same constants the seed and the tests use.
+  DEMO_SIGNINS=$(node_modules/.bin/tsx -e 'import("./seeds/demo-data.ts").then((m) => {
+    console.log(`  Demo sign-ins (invented people; password for all: ${m.DEMO_PASSWORD}):`);
+    for (const p of m.DEMO_PEOPLE) console.log("    " + p.email.padEnd(36) + p.label);
+    console.log("\n  Device simulator: http://127.0.0.1:" + process.env.CORVANE_SIM_PORT + "/health (invented devices, synthetic beats)");
+  })')
+fi
 cat <<EOF
 
   Corvane is running at http://127.0.0.1:$PORT  (decision support only; see SAFETY.md)
 
-  Demo sign-ins (invented people; password for all: $(node_modules/.bin/tsx -e 'import("./seeds/demo-data.ts").then(m => process.stdout.write(m.DEMO_PASSWORD))')):
-$(node_modules/.bin/tsx -e 'import("./seeds/demo-data.ts").then(m => { for (const p of m.DEMO_PEOPLE) console.log("    " + p.email.padEnd(36) + p.label); })')
+$DEMO_SIGNINS
 
-  Device simulator: http://127.0.0.1:$CORVANE_SIM_PORT/health (invented devices, synthetic beats)
-  Ctrl-C stops the app, the simulator, ingest, scheduler and PostgreSQL.
+  Ctrl-C stops the app, the workers and PostgreSQL.
 
 EOF
 wait "$APP_PID"

@@ -15,7 +15,7 @@ import { researchMeasures } from "./research/researchMeasures";
 import type { Measured, Params } from "./result";
 import { heartRate, meanNN, nn50, pnn50, rmssd, sdnn, sdsd } from "./time-domain";
 import { ALGORITHM_VERSION } from "./version";
-import { cleanForWindows, type BeatSeries } from "./windows";
+import { cleanForWindows, seriesStartS, type BeatSeries } from "./windows";
 
 export const WHOLE_KEYS = [
   "n_beats", "mean_nn", "hr", "sdnn", "rmssd", "sdsd", "nn50", "pnn50", "sd1", "sd2", "sampen", "apen", "mse",
@@ -71,7 +71,7 @@ export function summariseRecording(series: BeatSeries, options: SummaryOptions =
   const cd = deleted.value;
   const nn = ci?.nn ?? new Float64Array(0);
   values.n_beats = nn.length;
-  const start = series.rr.length ? (series.times ? series.times[0]! : series.rr[0]! / 1000) - series.rr[0]! / 1000 : 0;
+  const start = seriesStartS(series);
   const end = ci && ci.inputTimes.length ? ci.inputTimes[ci.inputTimes.length - 1]! : start + 1;
   const quality = ci
     ? windowQuality(ci, { startS: start, endS: Math.max(end, start + 1e-3) }, {

@@ -85,6 +85,12 @@ function sliceByTime(times: Float64Array, startS: number, endS: number): [number
   return [lower(startS), lower(endS)];
 }
 
+/** When the series begins, s: the start of its first interval (its first beat time minus that interval). */
+export function seriesStartS(series: BeatSeries): number {
+  if (!series.rr.length) return 0;
+  return (series.times ? series.times[0]! : series.rr[0]! / 1000) - series.rr[0]! / 1000;
+}
+
 /** Cleans the series twice — isolated abnormal beats interpolated (most indices) and deleted (Lomb–Scargle). */
 export function cleanForWindows(series: BeatSeries, population: Population, clean: boolean) {
   const base: CleanInput = {
@@ -114,9 +120,7 @@ export function windowsFromCleaned(
   options: WindowOptions & { includeShort?: boolean } = {},
 ): WindowRun {
   const o = { ...WINDOW_DEFAULTS, population: "adult" as Population, clean: true, includeLong: true, includeShort: true, entropy: { m: 2, r: 0.2 }, ...options };
-  const firstStart = series.rr.length
-    ? (series.times ? series.times[0]! : series.rr[0]! / 1000) - series.rr[0]! / 1000
-    : 0;
+  const firstStart = seriesStartS(series);
   const originS = o.originS ?? firstStart;
   const run: WindowRun = {
     version: ALGORITHM_VERSION,
