@@ -5,6 +5,7 @@ import { parseArgs } from "node:util";
 import { db } from "@/lib/db/knex";
 import { logger } from "@/lib/log";
 import { loadSimulatedDevices } from "@/lib/simulator/load-devices";
+import { FileSeqLedger } from "@/lib/simulator/seq-ledger";
 import { createSimulatorServer } from "@/lib/simulator/server";
 import { DEFAULT_SIMULATOR_PORT, simulatorStreamUrl } from "@/seeds/demo-data";
 
@@ -14,6 +15,8 @@ const USAGE = `usage: tsx scripts/simulator.ts [options]
   --speed N        simulated seconds per second (default 1 = real time; 60 = a minute a second; at most 3600)
   --truth          tests only: serve /devices/:serial/truth and /devices/:serial/inject
   --no-backfill    start at now instead of 19:00 local on the previous evening
+  --seq-ledger F   keep each device's sequence numbers across restarts in the JSON file F (npm start:
+                   .corvane/simulator-seq.json); without it every start numbers from 1
   --help           this text
 
 Reads every device with an open bed assignment from DATABASE_URL; needs NEXTAUTH_SECRET to unseal their tokens.
@@ -39,6 +42,7 @@ function parseCommandLine(argv: string[]) {
         speed: { type: "string" },
         truth: { type: "boolean" },
         "no-backfill": { type: "boolean" },
+        "seq-ledger": { type: "string" },
         help: { type: "boolean" },
       },
     }));
@@ -54,7 +58,9 @@ function parseCommandLine(argv: string[]) {
         ? number("CORVANE_SIM_PORT", process.env.CORVANE_SIM_PORT, isPort, "a whole number 1–65535")
         : DEFAULT_SIMULATOR_PORT;
   const speed = values.speed !== undefined ? number("--speed", values.speed, (v) => v > 0 && v <= 3600, "a number above 0 and at most 3600") : 1;
-  return { port, speed, truth: values.truth ?? false, backfill: !values["no-backfill"] };
+  const seqLedger = values["seq-ledger"];
+  if (seqLedger !== undefined && seqLedger.trim() === "") throw new UsageError("--seq-ledger needs a file name");
+  return { port, speed, truth: values.truth ?? false, backfill: !values["no-backfill"], seqLedger };
 }
 
 async function main(): Promise<number> {
@@ -87,7 +93,8 @@ async function main(): Promise<number> {
       logger.warn({ serial: d.serial, registered: d.streamUrl, port: args.port }, "device registered with another stream URL than this simulator serves");
     }
   }
-  const sim = createSimulatorServer({ devices, speed: args.speed, truth: args.truth, backfill: args.backfill });
+  const seqLedger = args.seqLedger ? new FileSeqLedger(args.seqLedger) : undefined;
+  const sim = createSimulatorServer({ devices, speed: args.speed, truth: args.truth, backfill: args.backfill, seqLedger });
   await sim.listen(args.port);
   return new Promise<number>((resolve) => {
     const stop = (signal: NodeJS.Signals) => {

@@ -64,7 +64,7 @@ wait_for_http "http://127.0.0.1:$PORT/api/health" "$APP_PID" || die "the app did
 # monitors streaming synthetic beats), the ingest that stores their beats, and the scheduler that computes windows.
 NODE_TS=(node --import tsx)
 if [ "$CORVANE_DEMO_MODE" = 1 ]; then
-  supervise "device simulator" "${NODE_TS[@]}" scripts/simulator.ts --port "$CORVANE_SIM_PORT"
+  supervise "device simulator" "${NODE_TS[@]}" scripts/simulator.ts --port "$CORVANE_SIM_PORT" --seq-ledger .corvane/simulator-seq.json
   wait_for_http "http://127.0.0.1:$CORVANE_SIM_PORT/health" "${SUPERVISED[-1]}" || log "the device simulator is not answering yet"
 fi
 supervise "ingest" "${NODE_TS[@]}" scripts/ingest.ts

@@ -10,6 +10,7 @@ import { BEAT_TYPES } from "@/lib/streaming/protocol";
 import type { DemoScenario } from "@/seeds/demo-data";
 import { deviceClock } from "./clock";
 import { nextNightBlock, nightBlockAt, type NightBlock } from "./night";
+import type { SeqLedger } from "./seq-ledger";
 import { FAULT, NO_LABEL, packFlags, RecordStore, RHYTHMS, STATUS, TRUTH_LABELS } from "./records";
 import { DRIFT_CLOCK, planNight, RESEND_COUNT } from "./scenarios";
 
@@ -231,6 +232,8 @@ export class SimulatedDevice {
   constructor(
     readonly config: SimulatedDeviceConfig,
     keepTruth: boolean,
+    /** Where this device's numbering stands across restarts; without one it counts from 1. */
+    private readonly ledger: SeqLedger | null = null,
   ) {
     assertDeviceConfig(config);
     this.store = new RecordStore(config.resolutionMs, keepTruth);
@@ -241,7 +244,19 @@ export class SimulatedDevice {
     if (this.current) throw new Error(`device ${this.config.serial} has already begun`);
     this.current = prepareNight(this.config, nightBlockAt(fromMs, this.config.timeZone));
     const rel = fromMs - this.current.block.startMs;
-    while (this.cursor < this.current.length && this.current.tRelMs[this.cursor]! < rel) this.cursor++;
+    let skipped = 0;
+    while (this.cursor < this.current.length && this.current.tRelMs[this.cursor]! < rel) {
+      if (this.current.op[this.cursor] !== OP_RESEND) skipped++;
+      this.cursor++;
+    }
+    if (this.ledger) {
+      // The block's records carry the seqs they had when this device last sent them, and a new block follows on.
+      const { serial } = this.config;
+      const evening = this.current.block.evening;
+      const first = this.ledger.firstSeqOf(serial, evening) ?? this.ledger.nextFree(serial);
+      this.ledger.noteBlock(serial, evening, first);
+      this.store.startAt(first + skipped);
+    }
   }
 
   /** Sends every record with true time ≤ t; returns how many were sent. */
@@ -256,6 +271,7 @@ export class SimulatedDevice {
       c = this.current = this.upcoming ?? prepareNight(this.config, nextNightBlock(c.block, this.config.timeZone));
       this.upcoming = null;
       this.cursor = 0;
+      this.ledger?.noteBlock(this.config.serial, c.block.evening, this.store.lastSeq + 1);
     }
     this.dropSent();
     return this.store.lastSeq - before;

@@ -78,6 +78,8 @@ export class RecordStore {
   private firstSeqHeld = 1;
   private held = 0;
   private nextSeq = 1;
+  /** seq of the first record this store numbered (1 unless the device kept counting across a restart). */
+  private startSeq = 1;
   /** Before sending seq s, the device re-sends the `count` records before s. Keyed by the next seq, not the last
    *  one sent, so a reader that has already sent the last record still gets the resend in the same place. */
   private readonly resends = new Map<number, number>();
@@ -97,6 +99,13 @@ export class RecordStore {
   }
   get size(): number {
     return this.held;
+  }
+
+  /** Numbers the first record `seq` instead of 1: a device that kept counting across a restart. Before any record. */
+  startAt(seq: number): void {
+    if (this.nextSeq !== this.startSeq || this.held) throw new Error("startAt comes before the first record");
+    if (!(Number.isSafeInteger(seq) && seq >= 1)) throw new RangeError(`a seq is a whole number ≥ 1, got ${seq}`);
+    this.firstSeqHeld = this.nextSeq = this.startSeq = seq;
   }
 
   append(r: AppendInput): number {
@@ -121,7 +130,7 @@ export class RecordStore {
 
   /** The device re-sends its last `count` records (fewer if it has sent fewer), ahead of its next record. */
   resendLast(count: number): void {
-    const n = Math.min(count, this.lastSeq);
+    const n = Math.min(count, this.nextSeq - this.startSeq);
     if (n > 0) this.resends.set(this.nextSeq, Math.max(n, this.resends.get(this.nextSeq) ?? 0));
   }
 

@@ -14,11 +14,14 @@ import { hashStreamToken, tokenMatches } from "@/lib/devices/stream-token";
 import { logger as rootLogger } from "@/lib/log";
 import { SimulatedDevice, type SimulatedDeviceConfig } from "./device";
 import { backfillStartBlock } from "./night";
+import type { SeqLedger } from "./seq-ledger";
 
 const LOOPBACK_HOST = "127.0.0.1";
 /** SSE `retry:` sent to every reader, ms. */
 export const RETRY_MS = 2000;
 const HEARTBEAT_MS = 15_000;
+/** How often the sequence ledger is written, wall ms (and on close). */
+const LEDGER_SAVE_MS = 60_000;
 /** How often simulated time advances and new records go out, wall ms. */
 const TICK_MS = 250;
 /** Records older than this (simulated time) are dropped from the buffers: above the longest backfill (29 h). */
@@ -41,6 +44,8 @@ export interface SimulatorOptions {
   truth: boolean;
   /** Start from the previous evening (default) or from now. */
   backfill?: boolean;
+  /** Keeps each device's numbering across restarts (npm start: a file in .corvane/); saved every minute and on close. */
+  seqLedger?: SeqLedger & { save?: () => void };
   /** Wall clock, epoch ms (Date.now by default); tests pass a fixed or hand-driven one. */
   now?: () => number;
   tickMs?: number;
@@ -124,7 +129,7 @@ export function createSimulatorServer(options: SimulatorOptions): SimulatorServe
   const started = performance.now();
   for (const config of options.devices) {
     if (entries.has(config.serial)) throw new RangeError(`device ${config.serial} is listed twice`);
-    const device = new SimulatedDevice(config, options.truth);
+    const device = new SimulatedDevice(config, options.truth, options.seqLedger ?? null);
     if (backfill) {
       device.begin(backfillStartBlock(wallStart, config.timeZone).startMs);
       device.advanceTo(wallStart);
@@ -234,7 +239,7 @@ export function createSimulatorServer(options: SimulatorOptions): SimulatorServe
       throw new HttpError(
         409,
         "ahead_of_device",
-        `Last-Event-ID ${lastEventId} is ahead of this device's newest record (${store.lastSeq}): the device restarted and its sequence began again at 1`,
+        `Last-Event-ID ${lastEventId} is ahead of this device's newest record (${store.lastSeq}): the device restarted and its sequence began again`,
       );
     }
     req.socket.setNoDelay(true);
@@ -375,6 +380,20 @@ export function createSimulatorServer(options: SimulatorOptions): SimulatorServe
 
   let tickTimer: NodeJS.Timeout | null = null;
   let heartbeatTimer: NodeJS.Timeout | null = null;
+  let ledgerTimer: NodeJS.Timeout | null = null;
+
+  /** Writes where every device's numbering stands (a failed write is logged; the next one tries again). */
+  function saveLedger(): void {
+    const ledger = options.seqLedger;
+    if (!ledger) return;
+    for (const [serial, entry] of entries) ledger.noteSent(serial, entry.device.store.lastSeq);
+    try {
+      ledger.save?.();
+    } catch (err) {
+      log.error({ err }, "could not save the simulator's sequence ledger");
+    }
+  }
+  saveLedger();
 
   return {
     async listen(port) {
@@ -394,6 +413,7 @@ export function createSimulatorServer(options: SimulatorOptions): SimulatorServe
         }
       }, tickMs);
       heartbeatTimer = setInterval(heartbeat, heartbeatMs);
+      if (options.seqLedger) ledgerTimer = setInterval(saveLedger, LEDGER_SAVE_MS);
       const bound = (server.address() as AddressInfo).port;
       log.info({ host: LOOPBACK_HOST, port: bound, devices: entries.size, speed, truth: options.truth }, "simulator listening");
       return { port: bound };
@@ -401,6 +421,8 @@ export function createSimulatorServer(options: SimulatorOptions): SimulatorServe
     async close() {
       if (tickTimer) clearInterval(tickTimer);
       if (heartbeatTimer) clearInterval(heartbeatTimer);
+      if (ledgerTimer) clearInterval(ledgerTimer);
+      saveLedger();
       for (const entry of entries.values()) {
         for (const r of entry.readers) {
           r.closed = true;

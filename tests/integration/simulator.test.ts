@@ -3,6 +3,9 @@
 // channel and hostile-event hook, the live stream, loading devices from PostgreSQL and the command-line entry point.
 // Servers run in-process on 127.0.0.1 with listen(0); the database parts use a scratch database seeded with the demo.
 import { spawn } from "node:child_process";
+import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
 import { createServer as createNetServer } from "node:net";
 import { formatInTimeZone } from "date-fns-tz";
 import { EventSource } from "eventsource";
@@ -14,6 +17,7 @@ import { prepareNight, type SimulatedDeviceConfig } from "@/lib/simulator/device
 import { loadSimulatedDevices, scenarioForBed } from "@/lib/simulator/load-devices";
 import { eveningAnchor, LEAD_IN_MS, nightBlock } from "@/lib/simulator/night";
 import type { RecordTruth } from "@/lib/simulator/records";
+import { FileSeqLedger, MemorySeqLedger, type SeqLedger } from "@/lib/simulator/seq-ledger";
 import { createSimulatorServer, RETRY_MS, type SimulatorServer } from "@/lib/simulator/server";
 import { parseStreamEvent, type BeatRecord, type StatusRecord, type StreamRecord } from "@/lib/streaming/protocol";
 import { seed } from "@/seeds/01_demo";
@@ -46,7 +50,7 @@ afterEach(async () => {
 
 async function serve(
   devices: SimulatedDeviceConfig[],
-  o: { now?: () => number; truth?: boolean; backfill?: boolean; speed?: number; heartbeatMs?: number } = {},
+  o: { now?: () => number; truth?: boolean; backfill?: boolean; speed?: number; heartbeatMs?: number; seqLedger?: SeqLedger } = {},
 ): Promise<{ sim: SimulatorServer; base: string }> {
   const sim = createSimulatorServer({
     devices,
@@ -55,6 +59,7 @@ async function serve(
     backfill: o.backfill ?? true,
     now: o.now ?? (() => NOW),
     heartbeatMs: o.heartbeatMs,
+    seqLedger: o.seqLedger,
     log: quiet,
   });
   open.push(sim);
@@ -339,6 +344,49 @@ describe("simulator determinism and backfill", () => {
     const night = between(bs, Date.parse(c.eveningUtc), Date.parse(c.morningUtc));
     const covered = night.reduce((a, b) => a + b, 0) / HOUR;
     expect(Math.abs(covered - c.nightHours)).toBeLessThan(10 / 3600); // within 10 s: one beat at each edge
+  });
+
+  it("keeps each device's numbering across a restart on a later local day (sequence ledger)", async () => {
+    const ledger = new MemorySeqLedger();
+    let wall = NOW;
+    const first = await serve([deviceConfig("SIM-A", "ectopy")], { now: () => wall, seqLedger: ledger });
+    const before = first.sim.device("SIM-A")!.store;
+    expect(before.firstSeq).toBe(1); // a device the ledger has never seen counts from 1
+    // Run on past 19:00 EST on the 20th and past local midnight: the block of the 20th begins on the way.
+    wall = Date.parse("2026-11-21T06:00:00Z");
+    first.sim.tick();
+    const blockOf20th = ledger.firstSeqOf("SIM-A", "2026-11-20")!;
+    expect(blockOf20th).toBeGreaterThan(30_000);
+    const sentBefore = before.lastSeq;
+    const sample = [blockOf20th, blockOf20th + 1234, sentBefore].map((s) => before.event(s));
+    await first.sim.close();
+    // Restart at 09:00 EST on the 21st: the backfill starts on the evening of the 20th and must carry the same seqs,
+    // so the ingest's resume point is not ahead of the device (without the ledger it would restart at 1).
+    const second = await serve([deviceConfig("SIM-A", "ectopy")], { now: () => Date.parse("2026-11-21T14:00:00Z"), seqLedger: ledger });
+    const after = second.sim.device("SIM-A")!.store;
+    expect(after.firstSeq).toBe(blockOf20th);
+    expect(after.lastSeq).toBeGreaterThan(sentBefore);
+    expect([blockOf20th, blockOf20th + 1234, sentBefore].map((s) => after.event(s))).toEqual(sample);
+    const unnumbered = await serve([deviceConfig("SIM-A", "ectopy")], { now: () => Date.parse("2026-11-21T14:00:00Z") });
+    expect(unnumbered.sim.device("SIM-A")!.store.firstSeq).toBe(1);
+  });
+
+  it("keeps the sequence ledger in a JSON file and refuses one that is not a ledger", () => {
+    const dir = mkdtempSync(join(tmpdir(), "corvane-ledger-"));
+    const path = join(dir, "seq.json");
+    const a = new FileSeqLedger(path);
+    expect(a.nextFree("SIM-A")).toBe(1);
+    a.noteBlock("SIM-A", "2026-11-19", 1);
+    a.noteBlock("SIM-A", "2026-11-20", 80_001);
+    a.noteSent("SIM-A", 91_000);
+    a.save();
+    const b = new FileSeqLedger(path);
+    expect(b.firstSeqOf("SIM-A", "2026-11-20")).toBe(80_001);
+    expect(b.firstSeqOf("SIM-A", "2026-11-21")).toBeNull();
+    expect(b.nextFree("SIM-A")).toBe(91_001);
+    writeFileSync(path, JSON.stringify({ version: 1, devices: { "SIM-A": { blocks: { yesterday: 1 }, lastSeq: 3 } } }));
+    expect(() => new FileSeqLedger(path)).toThrow(/not a simulator sequence ledger/);
+    rmSync(dir, { recursive: true, force: true });
   });
 
   it("starts at now with --no-backfill, seq 1 first", async () => {
