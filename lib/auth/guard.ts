@@ -134,7 +134,7 @@ export function guardedAction<S extends z.ZodType, R = undefined>(
   name: keyof typeof ACTION_ACCESS,
   schema: S,
   handler: (input: z.infer<S>, actor: Actor) => Promise<ActionResult<R>>,
-  opts: { unitIdsOf?: (input: z.infer<S>) => string[] } = {},
+  opts: { unitIdsOf?: (input: z.infer<S>) => string[] | Promise<string[]> } = {},
 ): (prev: ActionResult<R> | null, form: FormData) => Promise<ActionResult<R>> {
   const access: Access = ACTION_ACCESS[name]!;
   return async (_prev, form) => {
@@ -154,10 +154,10 @@ export function guardedAction<S extends z.ZodType, R = undefined>(
       return { ok: false, code: "invalid_input", message: "Check the highlighted fields.", fieldErrors };
     }
     if (access.kind === "permission" && opts.unitIdsOf) {
-      const outside = opts.unitIdsOf(parsed.data).filter((u) => !can(actor.grants, access.permission, u));
+      const outside = (await opts.unitIdsOf(parsed.data)).filter((u) => !can(actor.grants, access.permission, u));
       if (outside.length) {
         await denied(actor, `action ${name}`, access.permission, outside[0]);
-        return { ok: false, code: "forbidden", message: "You can only make changes in units you administer." };
+        return { ok: false, code: "forbidden", message: "Your roles do not allow this in that unit." };
       }
     }
     try {

@@ -21,6 +21,12 @@ export interface Grant {
 export const PERMISSIONS = {
   /** Unit census: beds and current stays (names, record numbers). */
   "census.view": ["clinician", "charge_nurse", "biomed", "admin"],
+  /** Trends of patients in the unit: Ward overview, Night review, Window detail, Handoff summary (audited reads). */
+  "trends.view": ["clinician", "charge_nurse"],
+  /** Clinical event annotations on a patient's night: add and edit. */
+  "annotations.write": ["clinician", "charge_nurse"],
+  /** The clinician's note on a patient's Handoff summary. */
+  "handoff.write": ["clinician"],
   /** People: create, change roles, deactivate. */
   "people.manage": ["admin"],
   /** Audit trail and chain check (read-only). */

@@ -6,7 +6,7 @@ import type { Permission } from "./roles";
 export type Access = (
   | { kind: "public" }
   | { kind: "signed_in" }
-  | { kind: "permission"; permission: Permission; unitParam?: string }
+  | { kind: "permission"; permission: Permission; unitParam?: string; stayParam?: string }
 ) & {
   /** HTTP method the route answers, when not GET (route handlers only). */
   method?: "POST";
@@ -20,6 +20,12 @@ export const ROUTE_ACCESS: Record<string, Access> = {
   "/signin": { kind: "public" },
   "/forbidden": { kind: "signed_in" },
   "/units/[unitId]/census": { kind: "permission", permission: "census.view", unitParam: "unitId" },
+  "/units/[unitId]/overview": { kind: "permission", permission: "trends.view", unitParam: "unitId" },
+  "/units/[unitId]/handoff": { kind: "permission", permission: "trends.view", unitParam: "unitId" },
+  // Stay-addressed screens: the guard looks up the stay's unit and checks the role there.
+  "/stays/[stayId]/night": { kind: "permission", permission: "trends.view", stayParam: "stayId" },
+  "/stays/[stayId]/window": { kind: "permission", permission: "trends.view", stayParam: "stayId" },
+  "/stays/[stayId]/handoff": { kind: "permission", permission: "trends.view", stayParam: "stayId" },
   "/people": { kind: "permission", permission: "people.manage" },
   "/people/new": { kind: "permission", permission: "people.manage" },
   "/people/[userId]": { kind: "permission", permission: "people.manage" },
@@ -27,6 +33,11 @@ export const ROUTE_ACCESS: Record<string, Access> = {
   "/api/health": { kind: "public" },
   "/api/auth/[...nextauth]": { kind: "public" },
   "/api/units/[unitId]/census": { kind: "permission", permission: "census.view", unitParam: "unitId" },
+  "/api/units/[unitId]/overview": { kind: "permission", permission: "trends.view", unitParam: "unitId" },
+  "/api/stays/[stayId]/night": { kind: "permission", permission: "trends.view", stayParam: "stayId" },
+  "/api/stays/[stayId]/beats": { kind: "permission", permission: "trends.view", stayParam: "stayId" },
+  "/api/stays/[stayId]/window": { kind: "permission", permission: "trends.view", stayParam: "stayId" },
+  "/api/stays/[stayId]/window/research": { kind: "permission", permission: "trends.view", stayParam: "stayId" },
   // Events are filtered per unit inside the handler.
   "/api/live": { kind: "signed_in", streaming: true },
   // Also open to the scheduler's secret header, checked by the handler itself.
@@ -39,4 +50,7 @@ export const ACTION_ACCESS: Record<string, Access> = {
   updatePersonRoles: { kind: "permission", permission: "people.manage" },
   setPersonActive: { kind: "permission", permission: "people.manage" },
   verifyAuditChain: { kind: "permission", permission: "audit.view" },
+  createAnnotation: { kind: "permission", permission: "annotations.write" },
+  updateAnnotation: { kind: "permission", permission: "annotations.write" },
+  saveHandoffNote: { kind: "permission", permission: "handoff.write" },
 };

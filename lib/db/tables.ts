@@ -18,9 +18,12 @@ export interface UnitRow {
   name: string;
   kind: UnitKind;
   time_zone: string;
+  /** Local "HH:MM" the unit's review night starts and ends (migrations/20261202000100_review.ts). */
+  night_starts_at: string;
+  night_ends_at: string;
   created_at: Date;
 }
-export type UnitInsert = Omit<UnitRow, "id" | "created_at">;
+export type UnitInsert = Omit<UnitRow, "id" | "created_at" | "night_starts_at" | "night_ends_at"> & Partial<Pick<UnitRow, "night_starts_at" | "night_ends_at">>;
 
 export interface BedRow {
   id: string;
@@ -260,5 +263,49 @@ declare module "knex/types/tables" {
     rule_sets: Knex.CompositeTableType<RuleSetRow, Omit<RuleSetRow, "id" | "created_at" | "is_default" | "note"> & Partial<Pick<RuleSetRow, "is_default" | "note">>, never>;
     flags: Knex.CompositeTableType<FlagRow, Omit<FlagRow, "id" | "raised_at" | "state" | "previous_flag_id" | "details"> & Partial<Pick<FlagRow, "state" | "previous_flag_id" | "details" | "raised_at">>, Partial<FlagRow>>;
     compute_runs: Knex.CompositeTableType<ComputeRunRow, Pick<ComputeRunRow, "algorithm_version" | "trigger"> & Partial<ComputeRunRow>, Partial<ComputeRunRow>>;
+  }
+}
+
+// ---- clinician review (migrations/20261202000100_review.ts) ----
+
+export const ANNOTATION_KINDS = ["medication", "procedure", "repositioning", "other"] as const;
+export type AnnotationKind = (typeof ANNOTATION_KINDS)[number];
+
+export interface ClinicalAnnotationRow {
+  id: string;
+  stay_id: string;
+  occurred_at: Date;
+  kind: AnnotationKind;
+  note: string;
+  created_by: string;
+  created_at: Date;
+  updated_by: string | null;
+  updated_at: Date | null;
+  version: number;
+}
+
+export interface HandoffNoteRow {
+  id: string;
+  stay_id: string;
+  /** "YYYY-MM-DD" (node-pg returns a date column as a Date unless told otherwise; repositories format it). */
+  night: string | Date;
+  note: string;
+  updated_by: string;
+  updated_at: Date;
+  version: number;
+}
+
+declare module "knex/types/tables" {
+  interface Tables {
+    clinical_annotations: Knex.CompositeTableType<
+      ClinicalAnnotationRow,
+      Pick<ClinicalAnnotationRow, "stay_id" | "occurred_at" | "kind" | "note" | "created_by">,
+      Partial<Pick<ClinicalAnnotationRow, "occurred_at" | "kind" | "note" | "updated_by" | "updated_at" | "version">>
+    >;
+    handoff_notes: Knex.CompositeTableType<
+      HandoffNoteRow,
+      Pick<HandoffNoteRow, "stay_id" | "night" | "note" | "updated_by">,
+      Partial<Pick<HandoffNoteRow, "note" | "updated_by" | "updated_at" | "version">>
+    >;
   }
 }

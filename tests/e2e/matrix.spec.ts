@@ -12,7 +12,7 @@ type Caller = Role | "signed_out";
 const CALLERS: Caller[] = ["signed_out", ...ROLES];
 
 // Real ids from the e2e database for the parameters in paths.
-interface Ids { units: Record<string, string>; userId: string; grants: Record<Role, Grant[]> }
+interface Ids { units: Record<string, string>; userId: string; grants: Record<Role, Grant[]>; stays: { stayId: string; unitId: string }[] }
 let ids: Ids;
 
 test.beforeAll(async () => {
@@ -23,7 +23,14 @@ test.beforeAll(async () => {
     const grants = Object.fromEntries(
       ROLES.map((r) => [r, demoPerson(r).grants.map((g) => ({ unitId: units[g.unitCode]!, role: g.role }))]),
     ) as Record<Role, Grant[]>;
-    ids = { units, userId, grants };
+    // One current stay per unit, so stay-addressed routes are tried inside and outside each caller's units.
+    const stays = await db("stays as s")
+      .join("beds as b", "b.id", "s.bed_id")
+      .whereNull("s.discharged_at")
+      .distinctOn("b.unit_id")
+      .orderBy([{ column: "b.unit_id" }, { column: "s.admitted_at" }])
+      .select<{ stayId: string; unitId: string }[]>("s.id as stayId", "b.unit_id as unitId");
+    ids = { units, userId, grants, stays };
   } finally {
     await db.destroy();
   }
@@ -41,14 +48,16 @@ test("every server action on disk is in the access table and in the build", () =
   for (const name of found) expect(built.has(name), `${name} in the build`).toBe(true);
 });
 
-/** The concrete URLs to try for a route: unit-scoped routes once per demo unit. */
+/** The concrete URLs to try for a route: unit- and stay-scoped routes once per demo unit. */
 function concretePaths(route: string): { path: string; unitId?: string }[] {
-  const fill = (unitId?: string) =>
+  const fill = (unitId?: string, stayId?: string) =>
     route
       .replace("[unitId]", unitId ?? "")
+      .replace("[stayId]", stayId ?? "")
       .replace("[userId]", ids.userId)
       .replace("[...nextauth]", "session");
   if (route.includes("[unitId]")) return Object.values(ids.units).map((u) => ({ path: fill(u), unitId: u }));
+  if (route.includes("[stayId]")) return ids.stays.map((s) => ({ path: fill(undefined, s.stayId), unitId: s.unitId }));
   return [{ path: fill() }];
 }
 
