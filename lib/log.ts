@@ -21,4 +21,19 @@ export function createLogger(destination?: DestinationStream, level = process.en
   );
 }
 
-export const logger = createLogger();
+/**
+ * Standard output, written synchronously. When whoever reads it goes away (`npm start | tee log` stopped with Ctrl-C,
+ * a closed terminal), later lines are dropped instead of being retried: otherwise the exit-time flush of pino's default
+ * destination can wait on the broken pipe forever and keep a worker from stopping.
+ */
+function stdoutDestination(): DestinationStream {
+  const dest = pino.destination({ dest: 1, sync: true });
+  dest.on("error", (err: NodeJS.ErrnoException) => {
+    if (err.code !== "EPIPE") throw err;
+    dest.write = () => true;
+    dest.flushSync = () => undefined;
+  });
+  return dest;
+}
+
+export const logger = createLogger(stdoutDestination());

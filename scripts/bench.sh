@@ -1,6 +1,7 @@
 #!/usr/bin/env bash
-# npm run bench[:engine|:ingest]: benchmarks, apart from the tests. The ingest benchmark gets its own PostgreSQL
-# cluster (port 55434, fresh each run), so it never touches npm start's or npm test's data.
+# npm run bench[:engine|:ingest|:ui]: benchmarks, apart from the tests. The ingest and UI benchmarks get their own
+# PostgreSQL cluster (port 55434, fresh each run), so they never touch npm start's or npm test's data; the UI benchmark
+# also builds into its own folder (.next-bench) and serves it on 127.0.0.1:3300.
 set -euo pipefail
 source "$(dirname "$0")/lib.sh"
 cd "$ROOT"
@@ -10,15 +11,43 @@ ensure_node_modules
 if [ "$what" = engine ] || [ "$what" = all ]; then
   node --import tsx scripts/bench-engine.ts
 fi
-if [ "$what" = ingest ] || [ "$what" = all ]; then
+APP_PID=""
+bench_cleanup() {
+  set +e
+  [ -n "$APP_PID" ] && kill -TERM "$APP_PID" 2>/dev/null && wait "$APP_PID" 2>/dev/null
+  pg_stop
+}
+# A fresh cluster and migrated database for one benchmark.
+bench_database() { # name
   ensure_postgres
-  trap 'pg_stop' EXIT
-  PG_DATA="$(pg_datadir bench)"
-  rm -rf "$PG_DATA"
-  pg_start bench "${CORVANE_BENCH_PG_PORT:-55434}"
-  ensure_database corvane corvane_bench
-  export DATABASE_URL="postgres://corvane@127.0.0.1:$PG_PORT/corvane_bench"
+  trap bench_cleanup EXIT
+  if [ -z "${PG_PORT:-}" ]; then
+    PG_DATA="$(pg_datadir bench)"
+    rm -rf "$PG_DATA"
+    pg_start bench "${CORVANE_BENCH_PG_PORT:-55434}"
+  fi
+  ensure_database corvane "$1"
+  export DATABASE_URL="postgres://corvane@127.0.0.1:$PG_PORT/$1"
   export NEXTAUTH_SECRET="bench-only-secret" LOG_LEVEL="${LOG_LEVEL:-warn}"
   node_modules/.bin/tsx node_modules/knex/bin/cli.js --knexfile knexfile.ts migrate:latest >/dev/null
+}
+
+if [ "$what" = ingest ] || [ "$what" = all ]; then
+  bench_database corvane_bench
   node --import tsx scripts/bench-ingest.ts
+fi
+if [ "$what" = ui ] || [ "$what" = all ]; then
+  bench_database corvane_bench_ui
+  ensure_chromium
+  log "writing 48 beds × 7 days of windows"
+  export CORVANE_BENCH_DATA="$(node_modules/.bin/tsx scripts/bench-ui-data.ts)"
+  export CORVANE_DIST_DIR=.next-bench NEXT_TELEMETRY_DISABLED=1 NEXTAUTH_URL="http://127.0.0.1:3300"
+  if build_is_stale .next-bench; then
+    log "building (next build into .next-bench)"
+    node_modules/.bin/next build >/dev/null
+  fi
+  NODE_ENV=production node_modules/.bin/next start -H 127.0.0.1 -p 3300 >/dev/null &
+  APP_PID=$!
+  wait_for_http "http://127.0.0.1:3300/api/health" "$APP_PID" || die "the app did not come up"
+  CORVANE_BENCH_URL="http://127.0.0.1:3300" node --import tsx scripts/bench-ui.ts
 fi

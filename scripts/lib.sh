@@ -194,11 +194,12 @@ load_env_file() {
 }
 
 # True when the production build is missing or older than any source it was built from.
-build_is_stale() {
-  [ -f "$ROOT/.next/BUILD_ID" ] || return 0
+build_is_stale() { # [dist dir, default .next]
+  local dist="${1:-.next}"
+  [ -f "$ROOT/$dist/BUILD_ID" ] || return 0
   local newer
   newer=$(cd "$ROOT" && find app lib components seeds proxy.ts instrumentation.ts knexfile.ts next.config.ts postcss.config.mjs \
-    package-lock.json tsconfig.json types -newer .next/BUILD_ID -type f -print -quit 2>/dev/null)
+    package-lock.json tsconfig.json types -newer "$dist/BUILD_ID" -type f -print -quit 2>/dev/null)
   [ -n "$newer" ]
 }
 

@@ -13,7 +13,7 @@ FAILED=0
 FAILED_STEPS=()
 REPORTS="$ROOT/.corvane/test-reports"
 
-cleanup() { set +e; trap '' PIPE; trap - EXIT INT TERM; pg_stop; }
+cleanup() { set +e; trap "" PIPE; trap - EXIT INT TERM; [ -n "${REVIEW_NIGHT_PID:-}" ] && kill "$REVIEW_NIGHT_PID" 2>/dev/null; pg_stop; }
 trap cleanup EXIT
 trap 'exit 130' INT
 trap 'exit 143' TERM
@@ -55,6 +55,10 @@ for url in "$DATABASE_URL" "$BASE/corvane_e2e"; do
     && DATABASE_URL="$url" node_modules/.bin/tsx scripts/seed.ts >/dev/null \
     || { log "migrate/seed failed for $url"; exit 1; }
 done
+# A simulated night of beats, windows and flags on four demo beds of the e2e database, for the review screens;
+# runs beside the first steps and is waited for before the browser tests.
+DATABASE_URL="$BASE/corvane_e2e" node_modules/.bin/tsx tests/support/seed-review-night.ts >"$REPORTS/review-night.log" 2>&1 &
+REVIEW_NIGHT_PID=$!
 
 log "1/5 typecheck"
 node_modules/.bin/tsc --noEmit
@@ -82,6 +86,10 @@ build_status=$?
 step_result "next build" $build_status
 
 log "5/5 playwright e2e (Debian chromium)"
+if ! wait "$REVIEW_NIGHT_PID"; then
+  log "the e2e review night could not be seeded:"; tail -5 "$REPORTS/review-night.log"
+  FAILED=$((FAILED + 1)); FAILED_STEPS+=("e2e review night seed")
+fi
 if [ "$build_status" = 0 ]; then
   DATABASE_URL="$BASE/corvane_e2e" PLAYWRIGHT_JSON_OUTPUT_NAME="$REPORTS/playwright.json" \
     node_modules/.bin/playwright test --reporter=list,json

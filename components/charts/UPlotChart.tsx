@@ -14,9 +14,11 @@ export interface UPlotChartProps {
   /** Called with the chart once created (for brushes, cursor hooks, sync). */
   onCreate?: (chart: uPlot) => void;
   className?: string;
+  /** Narrowest the chart draws, CSS px (sparklines go smaller than the default). */
+  minWidth?: number;
 }
 
-export function UPlotChart({ options, data, onCreate, className = "" }: UPlotChartProps) {
+export function UPlotChart({ options, data, onCreate, className = "", minWidth = 200 }: UPlotChartProps) {
   const host = useRef<HTMLDivElement>(null);
   const chart = useRef<uPlot | null>(null);
   const onCreateRef = useRef(onCreate);
@@ -27,12 +29,12 @@ export function UPlotChart({ options, data, onCreate, className = "" }: UPlotCha
   useEffect(() => {
     const el = host.current;
     if (!el) return;
-    const width = Math.max(200, Math.floor(el.clientWidth));
+    const width = Math.max(minWidth, Math.floor(el.clientWidth));
     const u = new uPlot({ ...options, width } as uPlot.Options, dataRef.current, el);
     chart.current = u;
     onCreateRef.current?.(u);
     const ro = new ResizeObserver(() => {
-      const w = Math.max(200, Math.floor(el.clientWidth));
+      const w = Math.max(minWidth, Math.floor(el.clientWidth));
       if (w !== u.width) u.setSize({ width: w, height: u.height });
     });
     ro.observe(el);
@@ -41,7 +43,7 @@ export function UPlotChart({ options, data, onCreate, className = "" }: UPlotCha
       u.destroy();
       chart.current = null;
     };
-  }, [options]);
+  }, [options, minWidth]);
 
   useEffect(() => {
     if (chart.current && chart.current.data !== data) chart.current.setData(data);

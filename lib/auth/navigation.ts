@@ -4,6 +4,11 @@ import { can, unitsWhere, type Grant } from "./roles";
 
 export function navItems(grants: readonly Grant[]): NavItem[] {
   const items: NavItem[] = [];
+  const trendUnits = unitsWhere(grants, "trends.view");
+  if (trendUnits.length) {
+    items.push({ label: "Ward overview", href: { unitScreen: "overview", unitIds: trendUnits }, matchPrefix: "^/(units/[^/]+/overview|stays/[^/]+/(night|window))" });
+    items.push({ label: "Handoff summary", href: { unitScreen: "handoff", unitIds: trendUnits }, matchPrefix: "^/(units|stays)/[^/]+/handoff" });
+  }
   const censusUnits = unitsWhere(grants, "census.view");
   if (censusUnits.length) {
     items.push({ label: "Census", href: { unitScreen: "census", unitIds: censusUnits }, matchPrefix: "^/units/[^/]+/census" });
@@ -13,10 +18,13 @@ export function navItems(grants: readonly Grant[]): NavItem[] {
   return items;
 }
 
-/** Each role's first screen: clinical and technical roles the census, admins People, quality the audit trail. */
+/** Each role's first screen: clinicians and charge nurses the Ward overview, biomedical engineers the census, admins
+ *  People, quality the audit trail. */
 export function landingPath(grants: readonly Grant[]): string | null {
-  const clinical = grants.find((g) => g.role === "clinician" || g.role === "charge_nurse" || g.role === "biomed");
-  if (clinical) return `/units/${clinical.unitId}/census`;
+  const clinical = grants.find((g) => g.role === "clinician" || g.role === "charge_nurse");
+  if (clinical) return `/units/${clinical.unitId}/overview`;
+  const biomed = grants.find((g) => g.role === "biomed");
+  if (biomed) return `/units/${biomed.unitId}/census`;
   if (can(grants, "people.manage")) return "/people";
   if (can(grants, "audit.view")) return "/audit";
   const anyCensus = unitsWhere(grants, "census.view")[0];
