@@ -48,7 +48,7 @@ function SortButton({ sortKey, sort, onSort, children, className = "" }: {
     <button
       type="button"
       onClick={() => onSort(sortKey)}
-      className={`inline-flex cursor-pointer items-center gap-1 rounded px-1 py-0.5 text-left font-bold hover:text-ink ${active ? "text-ink underline decoration-accent decoration-2 underline-offset-4" : ""} ${className}`}
+      className={`inline-flex min-h-6 min-w-6 cursor-pointer items-center gap-1 rounded px-1 py-0.5 text-left font-bold hover:text-ink ${active ? "text-ink underline decoration-accent decoration-2 underline-offset-4" : ""} ${className}`}
     >
       {children}
       <SortIcon direction={active ? sort.direction : null} />
@@ -211,7 +211,7 @@ export function OverviewTable({ initial }: { initial: WardOverviewDTO }) {
                       </SortButton>
                     </div>
                     <div>
-                      <SortButton sortKey={`${k}:change`} sort={sort} onSort={onSort} className="text-xs font-normal">
+                      <SortButton sortKey={`${k}:change`} sort={sort} onSort={onSort} className="text-sm font-normal">
                         change<span className="sr-only"> of {col.spoken} from baseline</span>
                       </SortButton>
                     </div>

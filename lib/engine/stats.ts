@@ -57,3 +57,15 @@ export function linearFit(x: ArrayLike<number>, y: ArrayLike<number>): { slope: 
   const slope = sxy / sxx;
   return { slope, intercept: my - slope * mx, r2: syy === 0 ? 1 : (sxy * sxy) / (sxx * syy) };
 }
+
+/** First index i with x[i] ≥ v in the non-decreasing x (x.length when none): binary search. */
+export function lowerBound(x: ArrayLike<number>, v: number): number {
+  let lo = 0;
+  let hi = x.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if (x[mid]! < v) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
+}

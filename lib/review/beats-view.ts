@@ -5,14 +5,15 @@
 import "server-only";
 import type { Knex } from "knex";
 import { z } from "zod";
-import { loadBeats, type ActiveStay } from "@/lib/compute/beats";
+import { loadBeats } from "@/lib/compute/beats";
 import { LEFT_CONTEXT_S } from "@/lib/compute/stay-windows";
 import { db as defaultDb } from "@/lib/db/knex";
 import type { BeatRow } from "@/lib/db/tables";
 import type { BeatAction, BeatLabel } from "@/lib/engine/clean/labels";
 import { heartRate } from "@/lib/engine/time-domain";
 import { cleanForWindows } from "@/lib/engine/windows";
-import type { StayScopeDTO } from "./stay-scope";
+import { asActiveStay, type StayScopeDTO } from "./stay-scope";
+import { lowerBound } from "@/lib/engine/stats";
 
 /** Spans up to this long come as single beats (a 15-min tachogram holds about 900–3,600 beats). */
 export const SINGLE_BEATS_MAX_S = 15 * 60;
@@ -88,15 +89,6 @@ export function bucketSeconds(spanS: number): number {
   return BUCKET_STEPS_S[BUCKET_STEPS_S.length - 1]!;
 }
 
-const activeStay = (stay: StayScopeDTO): ActiveStay => ({
-  stayId: stay.stayId,
-  bedId: stay.bedId,
-  unitId: stay.unitId,
-  timeZone: stay.night.timeZone,
-  population: stay.population,
-  admittedAt: new Date(stay.admittedAt),
-  dischargedAt: stay.dischargedAt ? new Date(stay.dischargedAt) : null,
-});
 
 /**
  * Device beat labels by beat time (epoch ms) for the stay's bed in [fromMs, toMs): beats of devices while assigned
@@ -114,17 +106,6 @@ async function beatTypes(knex: Knex, stay: StayScopeDTO, fromMs: number, toMs: n
   return new Map(rows.map((r) => [r.ms, r.beat_type]));
 }
 
-/** First index with a[i] ≥ v in the non-decreasing a. */
-function lowerBound(a: Float64Array, v: number): number {
-  let lo = 0;
-  let hi = a.length;
-  while (lo < hi) {
-    const mid = (lo + hi) >> 1;
-    if (a[mid]! < v) lo = mid + 1;
-    else hi = mid;
-  }
-  return lo;
-}
 
 /**
  * The stay's heart rate over [fromMs, toMs): single beats when the span is at most SINGLE_BEATS_MAX_S, else heart
@@ -139,7 +120,7 @@ export async function beatsView(stay: StayScopeDTO, fromMs: number, toMs: number
   const toS = toMs / 1000;
   const base = { stayId: stay.stayId, from: new Date(fromMs).toISOString(), to: new Date(toMs).toISOString() };
 
-  const series = await loadBeats(knex, activeStay(stay), fromMs - CONTEXT_S * 1000, toMs + CONTEXT_S * 1000, MAX_BEATS);
+  const series = await loadBeats(knex, asActiveStay(stay), fromMs - CONTEXT_S * 1000, toMs + CONTEXT_S * 1000, MAX_BEATS);
   const cleaned = series.count ? cleanForWindows(series, stay.population, true).interpolated.value : null;
   // loadBeats always gives beat times (the type leaves them optional for series built from intervals alone).
   const times = series.times ?? new Float64Array(0);

@@ -9,7 +9,7 @@ import { formatInTimeZone } from "date-fns-tz";
 import { auditAs, type Actor } from "@/lib/auth/guard";
 import type { ActionResult } from "@/lib/auth/action-result";
 import { can } from "@/lib/auth/roles";
-import { loadBeats, type ActiveStay } from "@/lib/compute/beats";
+import { loadBeats } from "@/lib/compute/beats";
 import { db as defaultDb } from "@/lib/db/knex";
 import type { IndexWindowRow, WindowKind } from "@/lib/db/tables";
 import { median } from "@/lib/engine/stats";
@@ -18,7 +18,7 @@ import { annotationsOf, type AnnotationDTO } from "./annotations";
 import { baselinesOf, flagsOfStay, type BaselineDTO, type FlagViewDTO } from "./flags-view";
 import type { HandoffNoteInput } from "./handoff.validation";
 import { latestNight, reviewNight, type NightTimes, type ReviewNight } from "./night";
-import { stayScope, type StayScopeDTO } from "./stay-scope";
+import { asActiveStay, stayScope, type StayScopeDTO } from "./stay-scope";
 
 /** A stretch without beats longer than this is listed as a device issue (the brief's 5 min). */
 export const GAP_LISTED_AFTER_S = 5 * 60;
@@ -364,15 +364,7 @@ export async function patientHandoff(stay: StayScopeDTO, night: ReviewNight, kne
   let leadOffS = 0;
   let gaps: GapDTO[] = [];
   if (present) {
-    const active: ActiveStay = {
-      stayId: stay.stayId,
-      bedId: stay.bedId,
-      unitId: stay.unitId,
-      timeZone: stay.night.timeZone,
-      population: stay.population,
-      admittedAt: new Date(stay.admittedAt),
-      dischargedAt: stay.dischargedAt ? new Date(stay.dischargedAt) : null,
-    };
+    const active = asActiveStay(stay);
     const limit = Math.ceil(((spanTo - spanFrom) / 1000 + 2 * EDGE_READ_S) * MAX_BEATS_PER_S);
     const beats = await loadBeats(knex, active, spanFrom - EDGE_READ_S * 1000, spanTo + EDGE_READ_S * 1000, limit);
     // loadBeats always gives beat times (epoch s); the engine's type leaves them optional.

@@ -53,6 +53,12 @@ export function latestNight(now: Date, t: NightTimes): ReviewNight {
   return tonight.from.getTime() <= now.getTime() ? tonight : reviewNight(addDays(today, -1), t);
 }
 
+/** The latest night that has ended by `now` (the morning review's night, even while tonight is in progress). */
+export function lastCompletedNight(now: Date, t: NightTimes): ReviewNight {
+  const latest = latestNight(now, t);
+  return latest.to.getTime() <= now.getTime() ? latest : reviewNight(addDays(latest.night, -1), t);
+}
+
 /** The nights a stay can be reviewed for, newest first: from the night holding admission to the latest started. */
 export function nightsOfStay(admittedAt: Date, until: Date, t: NightTimes, max = 14): ReviewNight[] {
   const out: ReviewNight[] = [];

@@ -4,6 +4,7 @@ import "server-only";
 import type { Knex } from "knex";
 import { z } from "zod";
 import { db as defaultDb } from "@/lib/db/knex";
+import type { ActiveStay } from "@/lib/compute/beats";
 import type { Population } from "@/lib/engine/clean/range-gate";
 import type { NightTimes } from "./night";
 
@@ -57,3 +58,14 @@ export async function stayScope(stayId: string, knex: Knex = defaultDb): Promise
     night: { timeZone: r.time_zone, startsAt: r.night_starts_at, endsAt: r.night_ends_at },
   };
 }
+
+/** The stay as the compute job's beat readers take it (lib/compute/beats.ts). */
+export const asActiveStay = (s: StayScopeDTO): ActiveStay => ({
+  stayId: s.stayId,
+  bedId: s.bedId,
+  unitId: s.unitId,
+  timeZone: s.night.timeZone,
+  population: s.population,
+  admittedAt: new Date(s.admittedAt),
+  dischargedAt: s.dischargedAt ? new Date(s.dischargedAt) : null,
+});

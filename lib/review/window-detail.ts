@@ -20,11 +20,11 @@ import { lombScargle } from "@/lib/engine/frequency/lomb-scargle";
 import { LONG_TERM_KEYS, longTermIndices, SHORT_TERM_KEYS, SHORT_WINDOW_LOMB_SCARGLE, shortTermIndices } from "@/lib/engine/indices";
 import { poincare } from "@/lib/engine/poincare/poincare";
 import type { Measured, Params } from "@/lib/engine/result";
-import { mean } from "@/lib/engine/stats";
+import { lowerBound, mean } from "@/lib/engine/stats";
 import { ALGORITHM_VERSION } from "@/lib/engine/version";
 import { cleanForWindows, seriesStartS, type BeatSeries, type CleanedForWindows } from "@/lib/engine/windows";
 import { addDays, latestNight, reviewNight, type NightTimes } from "./night";
-import type { StayScopeDTO } from "./stay-scope";
+import { asActiveStay, type StayScopeDTO } from "./stay-scope";
 
 /** One schema for the query of the Window detail page and of both window routes: `start` of a stored 5-min window. */
 export const windowQuerySchema = z.object({
@@ -273,29 +273,10 @@ export interface WindowBeats {
   storedHour: IndexWindowRow | null;
 }
 
-const activeStayOf = (s: StayScopeDTO): ActiveStay => ({
-  stayId: s.stayId,
-  bedId: s.bedId,
-  unitId: s.unitId,
-  timeZone: s.night.timeZone,
-  population: s.population,
-  admittedAt: new Date(s.admittedAt),
-  dischargedAt: s.dischargedAt ? new Date(s.dischargedAt) : null,
-});
 
 /** Half-open index range [from, to) of the ascending `times` that lie in [startS, endS). */
 export function spanOf(times: Float64Array, startS: number, endS: number): [number, number] {
-  const lower = (v: number) => {
-    let lo = 0;
-    let hi = times.length;
-    while (lo < hi) {
-      const mid = (lo + hi) >> 1;
-      if (times[mid]! < v) lo = mid + 1;
-      else hi = mid;
-    }
-    return lo;
-  };
-  return [lower(startS), lower(endS)];
+  return [lowerBound(times, startS), lowerBound(times, endS)];
 }
 
 const iso = (s: number) => new Date(s * 1000).toISOString();
@@ -321,7 +302,7 @@ function nightOfWindow(at: Date, t: NightTimes): string {
  * about 45 beats either side, and with that context it gives the same NN series as when the windows were stored.
  */
 export async function beatsAroundWindow(scope: StayScopeDTO, row: Pick<IndexWindowRow, "window_start" | "window_end">, knex: Knex = defaultDb): Promise<WindowBeats> {
-  const stay = activeStayOf(scope);
+  const stay = asActiveStay(scope);
   const startS = row.window_start.getTime() / 1000;
   const endS = row.window_end.getTime() / 1000;
   const gridHourS = Math.floor((startS + endS) / 2 / LONG_S) * LONG_S;

@@ -31,9 +31,9 @@ describe("migrations", () => {
     const first = await schemaSnapshot(db);
     expect(first.tables.map((t: { table_name: string }) => t.table_name)).toEqual(
       [
-        "audit_events", "baselines", "beats", "beats_default", "beds", "computation_params", "compute_runs",
-        "device_assignments", "device_stream_status", "devices", "flags", "index_windows", "patients", "rule_sets",
-        "stays", "units", "user_unit_roles", "users",
+        "audit_events", "baselines", "beats", "beats_default", "beds", "clinical_annotations", "computation_params",
+        "compute_runs", "device_assignments", "device_stream_status", "devices", "flags", "handoff_notes", "index_windows",
+        "patients", "rule_sets", "stays", "units", "user_unit_roles", "users",
       ],
     );
     expect(first.triggers.map((t: { tgname: string }) => t.tgname)).toEqual(["audit_events_no_truncate", "audit_events_no_update_delete"]);

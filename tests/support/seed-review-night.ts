@@ -1,6 +1,7 @@
 // tsx tests/support/seed-review-night.ts [--beds 4W-01,4W-02,…]
-// Tests only (npm test runs it on the e2e database): gives a few demo beds their simulated beats from the previous
-// evening until now — the same records the device simulator would backfill — through the ingest's own BeatWriter,
+// Tests only (npm test runs it on the e2e database): gives a few demo beds their simulated beats from the evening of
+// the last completed review night until now — the records the device simulator sends — through the ingest's own
+// BeatWriter,
 // then one compute run, so the review screens have a real night of windows, baselines and flags to show. Beat times
 // are the simulator's true times (the running ingest estimates them from the device clock instead).
 import { parseArgs } from "node:util";
@@ -9,7 +10,8 @@ import { db } from "@/lib/db/knex";
 import { BeatWriter, type DeviceCounters } from "@/lib/ingest/beat-writer";
 import { SimulatedDevice } from "@/lib/simulator/device";
 import { loadSimulatedDevices } from "@/lib/simulator/load-devices";
-import { backfillStartBlock } from "@/lib/simulator/night";
+import { nightBlockAt } from "@/lib/simulator/night";
+import { lastCompletedNight } from "@/lib/review/night";
 
 /** A healthy night, the rigid loss of complexity (raises flags), AF-like episodes and ectopy. */
 const DEFAULT_BEDS = ["4W-01", "4W-02", "4W-03", "4W-05"];
@@ -26,6 +28,7 @@ async function main(): Promise<void> {
   const devices = (await loadSimulatedDevices(db)).filter((d) => beds.includes(d.bedLabel));
   if (devices.length !== beds.length) throw new Error(`not every bed of ${beds.join(", ")} has a device assigned`);
   const ids = new Map((await db("devices").whereIn("serial", devices.map((d) => d.serial)).select("id", "serial")).map((r) => [r.serial, r.id as string]));
+  const units = new Map((await db("units").select("time_zone", "night_starts_at", "night_ends_at", "code")).map((u) => [u.code, u]));
   const state = new Map<string, DeviceCounters>();
   const writer = new BeatWriter(db, state, { batchSize: 50_000, flushIntervalMs: 3_600_000, maxBuffered: 10_000_000 });
   let beats = 0;
@@ -33,8 +36,11 @@ async function main(): Promise<void> {
     const deviceId = ids.get(config.serial)!;
     const c = counters();
     state.set(deviceId, c);
+    const unit = units.get(config.bedLabel.split("-")[0]!)!;
+    const night = lastCompletedNight(new Date(now), { timeZone: unit.time_zone, startsAt: unit.night_starts_at, endsAt: unit.night_ends_at });
     const device = new SimulatedDevice(config, true);
-    device.begin(backfillStartBlock(now, config.timeZone).startMs);
+    // From the evening that night begins (the simulator's blocks start at 19:00 local), whatever the time of day.
+    device.begin(nightBlockAt(night.from.getTime(), config.timeZone).startMs);
     device.advanceTo(now);
     const store = device.store;
     for (let seq = store.firstSeq; seq <= store.lastSeq; seq++) {

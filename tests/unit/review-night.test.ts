@@ -2,7 +2,7 @@
 // local date of its evening, so the nights across a DST change last 9 h (autumn) or 7 h (spring).
 import { describe, expect, it } from "vitest";
 import { annotationInstant, annotationSchema, annotationUpdateSchema, localToInstant } from "@/lib/review/annotations.validation";
-import { latestNight, nightParamSchema, nightsOfStay, reviewNight, type NightTimes } from "@/lib/review/night";
+import { lastCompletedNight, latestNight, nightParamSchema, nightsOfStay, reviewNight, type NightTimes } from "@/lib/review/night";
 
 const HOUR = 3_600_000;
 const NY: NightTimes = { timeZone: "America/New_York", startsAt: "22:00", endsAt: "06:00" };
@@ -56,6 +56,19 @@ describe("latestNight: last night in the morning, tonight from the evening start
     const n = latestNight(new Date("2026-03-08T03:00:00.000Z"), NY);
     expect(n.night).toBe("2026-03-07");
     expect(n.hours).toBe(7);
+  });
+});
+
+describe("lastCompletedNight: the night that has ended, even while tonight is in progress (source: the definition above)", () => {
+  it.each([
+    { now: "2026-12-02T20:00:00Z", local: "15:00 EST on 2 Dec", night: "2026-12-01" },
+    { now: "2026-12-03T04:00:00Z", local: "23:00 EST on 2 Dec, tonight under way", night: "2026-12-01" },
+    { now: "2026-12-03T08:00:00Z", local: "03:00 EST on 3 Dec, tonight under way", night: "2026-12-01" },
+    { now: "2026-12-03T11:00:00Z", local: "06:00 EST on 3 Dec, the instant tonight ends", night: "2026-12-02" },
+  ])("at $local it is the night of $night", ({ now, night }) => {
+    const n = lastCompletedNight(new Date(now), NY);
+    expect(n.night).toBe(night);
+    expect(n.to.getTime()).toBeLessThanOrEqual(Date.parse(now));
   });
 });
 

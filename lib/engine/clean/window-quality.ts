@@ -2,6 +2,7 @@
 import { measured, type Measured } from "../result";
 import type { CleanedBeats } from "./clean-beats";
 import { DEVICE_QUALITY_POOR_BELOW } from "./labels";
+import { lowerBound } from "../stats";
 
 export type QualityGrade = "good" | "limited" | "unusable";
 
@@ -69,17 +70,6 @@ export interface WindowQualityOptions {
   thresholds?: Partial<QualityThresholds>;
 }
 
-/** First index with a[i] ≥ v in the non-decreasing a. */
-function lowerBound(a: Float64Array, v: number): number {
-  let lo = 0;
-  let hi = a.length;
-  while (lo < hi) {
-    const mid = (lo + hi) >> 1;
-    if (a[mid]! < v) lo = mid + 1;
-    else hi = mid;
-  }
-  return lo;
-}
 
 const pct = (x: number) => `${(100 * x).toFixed(1)} %`;
 

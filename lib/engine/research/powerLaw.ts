@@ -5,6 +5,7 @@ import { POWER_LAW_CAVEAT } from "./caveats";
 import { hurwitzZeta } from "./hurwitzZeta";
 import { logNormalInterval, logNormalSf, normalCdf } from "./normal";
 import { brentMinimize, nelderMead } from "./optimize";
+import { lowerBound } from "../stats";
 
 export const POWER_LAW_DEFAULTS = {
   /** "discrete" for positive integers (run lengths), "continuous" otherwise; "auto" picks discrete when every
@@ -295,16 +296,6 @@ function discreteSE(alpha: number, c: number, nt: number): number {
   return 1 / Math.sqrt(nt * second);
 }
 
-function lowerBound(x: ArrayLike<number>, v: number): number {
-  let lo = 0;
-  let hi = x.length;
-  while (lo < hi) {
-    const mid = (lo + hi) >> 1;
-    if (x[mid]! < v) lo = mid + 1;
-    else hi = mid;
-  }
-  return lo;
-}
 
 type LogPdf = (x: number) => number;
 
