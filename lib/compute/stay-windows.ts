@@ -27,19 +27,23 @@ export const alignUp = (t: number, step: number) => Math.ceil(t / step) * step;
 
 /**
  * The complete windows of one kind in a chunk of beats, from `nextS` (the first window not yet stored) onwards.
- * `final` says that no later beat can join (a closed stay whose last beat is in the chunk): then every window ending
+ * `continues` says the stay already has windows of this kind before nextS. `final` says that no later beat can join (a closed stay whose last beat is in the chunk): then every window ending
  * by the last beat is complete; otherwise only those ending by the beat RIGHT_CONTEXT_BEATS before the last.
  */
-export function windowsOfChunk(series: BeatSeries, population: Population, kind: "short", nextS: number, final: boolean): ShortWindow[];
-export function windowsOfChunk(series: BeatSeries, population: Population, kind: "long", nextS: number, final: boolean): LongWindow[];
-export function windowsOfChunk(series: BeatSeries, population: Population, kind: "short" | "long", nextS: number, final: boolean): (ShortWindow | LongWindow)[] {
+export function windowsOfChunk(series: BeatSeries, population: Population, kind: "short", nextS: number, final: boolean, continues: boolean): ShortWindow[];
+export function windowsOfChunk(series: BeatSeries, population: Population, kind: "long", nextS: number, final: boolean, continues: boolean): LongWindow[];
+export function windowsOfChunk(series: BeatSeries, population: Population, kind: "short" | "long", nextS: number, final: boolean, continues: boolean): (ShortWindow | LongWindow)[] {
   const n = series.rr.length;
   if (n === 0) return [];
   const horizonS = final ? series.times![n - 1]! : n > RIGHT_CONTEXT_BEATS ? series.times![n - 1 - RIGHT_CONTEXT_BEATS]! : -Infinity;
   const cleaned = cleanForWindows(series, population, true);
   // The grid origin is the next window's start: a whole minute (hour) keeps the grid aligned, and no earlier window
   // is computed again.
-  const run = windowsFromCleaned(series, cleaned, { population, clean: true, originS: nextS, includeShort: kind === "short", includeLong: kind === "long" });
+  // Once the stay has windows, the grid goes on from nextS even when this chunk's first beat comes later (it starts
+  // inside a dropout): those windows are stored as unusable, as one pass over the whole stay would give them.
+  const run = windowsFromCleaned(series, cleaned, {
+    population, clean: true, originS: nextS, gridFromOrigin: continues, includeShort: kind === "short", includeLong: kind === "long",
+  });
   const windows: (ShortWindow | LongWindow)[] = kind === "short" ? run.short : run.long;
   return windows.filter((w) => w.startS >= nextS && w.endS <= horizonS);
 }

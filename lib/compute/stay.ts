@@ -94,13 +94,14 @@ export async function computeStay(stay: ActiveStay, ctx: StayContext): Promise<S
     const latest = marks.current[kind];
     // A new engine version starts again from the stay's start (old rows stay, keyed by their version).
     let nextS = latest ? latest.getTime() / 1000 + strideS : alignUp(admittedS, strideS);
+    let continues = latest !== null;
     const limit = kind === "short" ? ctx.chunkBeats : Math.max(ctx.chunkBeats, LONG_CHUNK_MIN_BEATS);
     while (nextS + windowS <= lastS) {
       const beats = await loadBeats(db, stay, (nextS - LEFT_CONTEXT_S) * 1000, untilMs, limit);
       const full = beats.count === limit;
       const windows = kind === "short"
-        ? windowsOfChunk(beats, stay.population, "short", nextS, closed && !full)
-        : windowsOfChunk(beats, stay.population, "long", nextS, closed && !full);
+        ? windowsOfChunk(beats, stay.population, "short", nextS, closed && !full, continues)
+        : windowsOfChunk(beats, stay.population, "long", nextS, closed && !full, continues);
       if (!windows.length) {
         if (full) logger.warn({ stayId: stay.stayId, kind, beats: beats.count }, "a full chunk of beats completed no window; left for a later run");
         break;
@@ -113,6 +114,7 @@ export async function computeStay(stay: ActiveStay, ctx: StayContext): Promise<S
       out.cleared.push(...applied.cleared);
       out.capped += applied.capped;
       nextS = windows[windows.length - 1]!.startS + strideS;
+      continues = true;
       if (!full) break;
     }
   }

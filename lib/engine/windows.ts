@@ -24,6 +24,9 @@ export interface WindowOptions {
   /** Grid origin, s: windows start at origin + k·stride. Default: the start of the first interval, so a file's
    *  windows start at its first beat; a live caller passes a clock-aligned origin (e.g. a whole minute). */
   originS?: number;
+  /** true: the grid starts at originS even when the first beat comes later, so a stay already under way stores the
+   *  time without beats (a dropout) as unusable windows; false (default): the first window starts with the data. */
+  gridFromOrigin?: boolean;
   population?: Population;
   /** false computes on the intervals exactly as given (validation against reference series). */
   clean?: boolean;
@@ -119,7 +122,7 @@ export function windowsFromCleaned(
   { interpolated, deleted }: CleanedForWindows,
   options: WindowOptions & { includeShort?: boolean } = {},
 ): WindowRun {
-  const o = { ...WINDOW_DEFAULTS, population: "adult" as Population, clean: true, includeLong: true, includeShort: true, entropy: { m: 2, r: 0.2 }, ...options };
+  const o = { ...WINDOW_DEFAULTS, population: "adult" as Population, clean: true, includeLong: true, includeShort: true, gridFromOrigin: false, entropy: { m: 2, r: 0.2 }, ...options };
   const firstStart = seriesStartS(series);
   const originS = o.originS ?? firstStart;
   const run: WindowRun = {
@@ -127,7 +130,7 @@ export function windowsFromCleaned(
     params: {
       windows: {
         shortWindowS: o.shortWindowS, shortStrideS: o.shortStrideS, longWindowS: o.longWindowS, longStrideS: o.longStrideS,
-        population: o.population, clean: o.clean, includeLong: o.includeLong, originS,
+        population: o.population, clean: o.clean, includeLong: o.includeLong, originS, gridFromOrigin: o.gridFromOrigin,
       },
       cleaning: interpolated.params,
       methods: {},
@@ -145,7 +148,7 @@ export function windowsFromCleaned(
   // Only complete windows: a window is computed once its end has passed the last beat received.
   const grid = (windowS: number, strideS: number) => {
     const out: [number, number][] = [];
-    const k0 = Math.max(0, Math.ceil((firstStart - originS) / strideS - 1e-9));
+    const k0 = o.gridFromOrigin ? 0 : Math.max(0, Math.ceil((firstStart - originS) / strideS - 1e-9));
     for (let k = k0; originS + k * strideS + windowS <= lastT + 1e-9; k++) out.push([originS + k * strideS, originS + k * strideS + windowS]);
     return out;
   };

@@ -181,6 +181,30 @@ describe("what a run computes", () => {
     expect(await db("computation_params").where({ params_hash: adult.hash }).first()).toMatchObject({ algorithm_version: ALGORITHM_VERSION });
   });
 
+  it("stores the same windows through a 25-min dropout however the beats are split into chunks (source: analytic — a sliding computation must not depend on how it is split)", async () => {
+    const admitted = new Date("2025-03-12T03:00:00Z");
+    const discharged = new Date(admitted.getTime() + 3 * HOUR);
+    const sim = simulateHealthySleep({ seed: 41, durationS: 3 * 3600 + 60, startS: admitted.getTime() / 1000 });
+    // The device is silent for 25 min from 70 min in: no beats at all (the ingest stores nothing for a dropout).
+    const k1 = sim.times.findIndex((t) => t * 1000 > admitted.getTime() + 70 * MIN);
+    const k2 = sim.times.findIndex((t) => t * 1000 > admitted.getTime() + 95 * MIN);
+    const stays = [];
+    for (const chunkBeats of [5000, 6000, 7000, 100_000]) {
+      const { stayId, deviceId } = await makeStay("4W", admitted, discharged);
+      await insertBeats(deviceId, sim, 0, k1);
+      await insertBeats(deviceId, sim, k2);
+      const run = await runCompute({ trigger: "test", db, now: new Date(discharged.getTime() + HOUR), chunkBeats });
+      expect(run.status).toBe("done");
+      stays.push(stayId);
+    }
+    const starts = await Promise.all(stays.map(async (id) => (await storedWindows(id, "short")).map((w) => `${w.window_start.toISOString()} ${w.grade}`)));
+    for (const s of starts.slice(0, -1)) expect(s).toEqual(starts.at(-1));
+    // No minute is missing from the first window to the last; those in the dropout are stored as unusable.
+    const minutes = starts.at(-1)!.map((w) => Date.parse(w.split(" ")[0]!) / MIN);
+    expect(minutes.at(-1)! - minutes[0]! + 1).toBe(minutes.length);
+    expect(starts.at(-1)!.filter((w) => w.endsWith("unusable")).length).toBeGreaterThanOrEqual(20);
+  });
+
   it("uses the neonatal range gate for a neonatal unit (source: DOMAIN §2.1, §6.8)", async () => {
     const admitted = new Date("2025-05-10T05:00:00Z");
     const discharged = new Date(admitted.getTime() + HOUR);

@@ -77,9 +77,9 @@ beforeAll(async () => {
   const cat = (x: Float64Array, y: Float64Array) => Float64Array.from([...x, ...y]);
   seriesA = { rr: cat(before.rr, after.rr), times: cat(before.times, after.times), quality: cat(before.quality!, after.quality!), leadOff: Uint8Array.from([...before.leadOff!, ...after.leadOff!]) };
   typesA = [...sim.beatType.slice(0, k1), ...sim.beatType.slice(k2)];
-  // One chunk for the whole stay: a chunk that would start reading inside the dropout skips the windows between its
-  // start and its first beat (a compute-job matter, reported separately); this file is about what the review reads.
-  const runA = await runCompute({ trigger: "test", db, now: new Date(A.discharged.getTime() + HOUR_MS), baseline: { hours: 1, minWindows: 30 }, chunkBeats: 100_000 });
+  // One chunk for the whole stay (tests/integration/compute.test.ts checks that chunking through a dropout stores the
+  // same windows); this file is about what the review reads.
+  const runA = await runCompute({ trigger: "test", db, now: new Date(A.discharged.getTime() + HOUR_MS), baseline: { hours: 1, minWindows: 30 } });
   expect(runA.status).toBe("done");
 
   stayA = (await stayScope(a.stayId, db))!;
