@@ -194,8 +194,10 @@ export interface IndexWindowRow {
   baseline_delta: Record<string, number | null> | null;
   compute_run_id: string | null;
   computed_at: Date;
+  /** Generated from values.hr (migrations/20261202000200_window_hr.ts); never written. */
+  hr: number | null;
 }
-export type IndexWindowInsert = Omit<IndexWindowRow, "id" | "computed_at">;
+export type IndexWindowInsert = Omit<IndexWindowRow, "id" | "computed_at" | "hr">;
 
 export interface BaselineRow {
   stay_id: string;

@@ -158,15 +158,15 @@ function bedsQuery(knex: Knex, unitId: string, now: Date, version: string) {
  */
 function sparklineQuery(knex: Knex, stayIds: string[], version: string, from: Date, until: Date, now: Date, bucketS: number) {
   return knex.raw<{ rows: { stay_id: string; k: number; hr: number }[] }>(
+    // Answered from the index_windows_hr_grid index alone (migrations/20261202000200_window_hr.ts).
     `SELECT w.stay_id,
             ((extract(epoch FROM w.window_start)::bigint - :fromS) / :bucketS)::int AS k,
-            percentile_cont(0.5) WITHIN GROUP (ORDER BY (w.values->>'hr')::float8) AS hr
+            percentile_cont(0.5) WITHIN GROUP (ORDER BY w.hr) AS hr
        FROM index_windows w
-      WHERE w.stay_id = ANY(CAST(:stayIds AS uuid[])) AND w.kind = 'short'
+      WHERE w.stay_id = ANY(CAST(:stayIds AS uuid[])) AND w.kind = 'short' AND w.algorithm_version = :version
         AND w.window_start >= :from AND w.window_start < :until
         AND (extract(epoch FROM w.window_start)::bigint - :fromS) % :tileS = 0
-        AND w.algorithm_version = :version AND w.window_end <= :now
-        AND w.grade <> 'unusable' AND jsonb_typeof(w.values->'hr') = 'number'
+        AND w.window_end <= :now AND w.grade <> 'unusable' AND w.hr IS NOT NULL
       GROUP BY 1, 2`,
     { stayIds, version, from, until, now, bucketS, fromS: Math.round(from.getTime() / 1000), tileS: SPARKLINE_TILE_S },
   );
