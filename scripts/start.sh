@@ -48,6 +48,16 @@ if [ "$CORVANE_DEMO_MODE" = 1 ]; then
   node_modules/.bin/tsx scripts/seed.ts
 fi
 
+# The live pipeline, each part in its own supervised process: the demo's device simulator (invented monitors
+# streaming synthetic beats) and the ingest that stores their beats. They need only PostgreSQL, so they start before
+# the build and the app: on a first start the previous night's beats are stored while the app is being built.
+NODE_TS=(node --import tsx)
+if [ "$CORVANE_DEMO_MODE" = 1 ]; then
+  supervise "device simulator" "${NODE_TS[@]}" scripts/simulator.ts --port "$CORVANE_SIM_PORT" --seq-ledger .corvane/simulator-seq.json
+  wait_for_http "http://127.0.0.1:$CORVANE_SIM_PORT/health" "${SUPERVISED[-1]}" || log "the device simulator is not answering yet"
+fi
+supervise "ingest" "${NODE_TS[@]}" scripts/ingest.ts
+
 if [ "$MODE" = prod ]; then
   if build_is_stale; then
     log "building (next build)"
@@ -60,14 +70,7 @@ fi
 APP_PID=$!
 wait_for_http "http://127.0.0.1:$PORT/api/health" "$APP_PID" || die "the app did not come up"
 
-# The live pipeline beside the app, each in its own supervised process: the demo's device simulator (invented
-# monitors streaming synthetic beats), the ingest that stores their beats, and the scheduler that computes windows.
-NODE_TS=(node --import tsx)
-if [ "$CORVANE_DEMO_MODE" = 1 ]; then
-  supervise "device simulator" "${NODE_TS[@]}" scripts/simulator.ts --port "$CORVANE_SIM_PORT" --seq-ledger .corvane/simulator-seq.json
-  wait_for_http "http://127.0.0.1:$CORVANE_SIM_PORT/health" "${SUPERVISED[-1]}" || log "the device simulator is not answering yet"
-fi
-supervise "ingest" "${NODE_TS[@]}" scripts/ingest.ts
+# The scheduler, which computes windows through the app's compute route, starts once the app answers.
 supervise "scheduler" "${NODE_TS[@]}" scripts/scheduler.ts
 
 DEMO_SIGNINS=""
