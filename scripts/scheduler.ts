@@ -2,12 +2,22 @@
 // PostgreSQL, so ticks survive restarts and several schedulers never double up), and once at start-up, it POSTs to
 // the app's compute route on loopback with the scheduler secret. The computation itself runs in the app
 // (lib/compute/run.ts); this process only keeps time.
+// A second every-minute tick works the mail directly against the database (no app route): the reminder job
+// (lib/mail/reminders.ts) enqueues what is due, then the mail worker (lib/mail/deliver.ts) sends the outbox.
+import type { Transporter } from "nodemailer";
 import PgBoss from "pg-boss";
 import config from "@/knexfile";
 import { SCHEDULER_SECRET_HEADER } from "@/lib/compute/config";
+import { db } from "@/lib/db/knex";
 import { logger } from "@/lib/log";
+import { createTransport } from "@/lib/mail/config";
+import { deliverDue } from "@/lib/mail/deliver";
+import { runReminders } from "@/lib/mail/reminders";
 
 const QUEUE = "corvane-compute-tick";
+const MAIL_QUEUE = "corvane-mail-tick";
+/** A mail tick sends at most 50 messages, each bounded by the transport's timeouts (lib/mail/config.ts). */
+const MAIL_TIMEOUT_S = 30 * 60;
 /** Longest a run may take before the tick gives up waiting (a first catch-up over several nights is the long case). */
 const RUN_TIMEOUT_MS = 15 * 60_000;
 /** The start-up run waits this long at most for the app to answer (npm start starts the app first). */
@@ -42,6 +52,26 @@ async function tick(reason: "schedule" | "start-up"): Promise<void> {
   }
 }
 
+let transport: Transporter | null = null;
+
+/** One mail tick: reminders, then delivery. Each step's failure is logged and never stops the scheduler. */
+async function mailTick(): Promise<void> {
+  const now = new Date();
+  try {
+    const r = await runReminders(db, now);
+    if (r.reminders + r.escalations > 0) logger.info({ ...r }, "mail tick: reminders enqueued");
+  } catch (err) {
+    logger.error({ err }, "mail tick: reminder job failed; delivery goes on");
+  }
+  try {
+    transport ??= createTransport();
+    const d = await deliverDue(db, transport, now);
+    if (d.claimed > 0) logger.info({ ...d }, "mail tick: outbox worked");
+  } catch (err) {
+    logger.error({ err }, "mail tick: delivery failed; the next tick retries");
+  }
+}
+
 async function appAnswers(): Promise<boolean> {
   try {
     return (await fetch(`http://127.0.0.1:${port}/api/health`, { signal: AbortSignal.timeout(5_000) })).status < 500;
@@ -57,7 +87,10 @@ await boss.start();
 await boss.createQueue(QUEUE, { name: QUEUE, policy: "stately", retryLimit: 0, expireInSeconds: RUN_TIMEOUT_MS / 1000 + 60 });
 await boss.schedule(QUEUE, "* * * * *", {}, { tz: "UTC" });
 await boss.work(QUEUE, { pollingIntervalSeconds: 2, batchSize: 1 }, async () => tick("schedule"));
-logger.info({ queue: QUEUE, computeUrl }, "scheduler running: compute every minute");
+await boss.createQueue(MAIL_QUEUE, { name: MAIL_QUEUE, policy: "stately", retryLimit: 0, expireInSeconds: MAIL_TIMEOUT_S });
+await boss.schedule(MAIL_QUEUE, "* * * * *", {}, { tz: "UTC" });
+await boss.work(MAIL_QUEUE, { pollingIntervalSeconds: 2, batchSize: 1 }, async () => mailTick());
+logger.info({ queue: QUEUE, mailQueue: MAIL_QUEUE, computeUrl }, "scheduler running: compute and mail every minute");
 
 let stopping = false;
 const stop = async (signal: string) => {
@@ -66,6 +99,8 @@ const stop = async (signal: string) => {
   logger.info({ signal }, "scheduler stopping");
   inFlight?.abort(new Error("scheduler stopping"));
   await boss.stop({ graceful: true, wait: true, timeout: 10_000 }).catch((err) => logger.error({ err }, "pg-boss did not stop cleanly"));
+  transport?.close();
+  await db.destroy().catch((err) => logger.error({ err }, "database pool did not close cleanly"));
   process.exit(0);
 };
 process.on("SIGINT", () => void stop("SIGINT"));

@@ -14,6 +14,9 @@ export DATABASE_URL="${DATABASE_URL:-postgres://corvane@127.0.0.1:$CORVANE_PG_PO
 export NEXTAUTH_URL="${NEXTAUTH_URL:-http://127.0.0.1:$PORT}"
 export CORVANE_DEMO_MODE="${CORVANE_DEMO_MODE:-1}"
 export CORVANE_SIM_PORT="${CORVANE_SIM_PORT:-3200}"
+# Mail goes to the local SMTP sink unless SMTP_HOST/SMTP_PORT name a real relay (see .env.example).
+export CORVANE_SMTP_SINK_PORT="${CORVANE_SMTP_SINK_PORT:-2525}"
+export SMTP_HOST="${SMTP_HOST:-127.0.0.1}" SMTP_PORT="${SMTP_PORT:-$CORVANE_SMTP_SINK_PORT}"
 
 APP_PID=""
 cleanup() {
@@ -21,7 +24,7 @@ cleanup() {
   set +e
   trap '' PIPE
   trap - INT TERM EXIT
-  [ ${#SUPERVISED[@]} -gt 0 ] && log "stopping the scheduler, ingest and device simulator"
+  [ ${#SUPERVISED[@]} -gt 0 ] && log "stopping the scheduler, ingest, mail sink and device simulator"
   stop_supervised
   if [ -n "$APP_PID" ] && kill -0 "$APP_PID" 2>/dev/null; then
     log "stopping the app (pid $APP_PID)"
@@ -55,6 +58,8 @@ NODE_TS=(node --import tsx)
 if [ "$CORVANE_DEMO_MODE" = 1 ]; then
   supervise "device simulator" "${NODE_TS[@]}" scripts/simulator.ts --port "$CORVANE_SIM_PORT" --seq-ledger .corvane/simulator-seq.json
   wait_for_http "http://127.0.0.1:$CORVANE_SIM_PORT/health" "${SUPERVISED[-1]}" || log "the device simulator is not answering yet"
+  # The local SMTP sink in place of a mail service: what it receives is stored and read on the Mailbox page.
+  supervise "mail sink" "${NODE_TS[@]}" scripts/mail-sink.ts --port "$CORVANE_SMTP_SINK_PORT"
 fi
 supervise "ingest" "${NODE_TS[@]}" scripts/ingest.ts
 
@@ -80,6 +85,7 @@ if [ "$CORVANE_DEMO_MODE" = 1 ]; then
     console.log(`  Demo sign-ins (invented people; password for all: ${m.DEMO_PASSWORD}):`);
     for (const p of m.DEMO_PEOPLE) console.log("    " + p.email.padEnd(36) + p.label);
     console.log("\n  Device simulator: http://127.0.0.1:" + process.env.CORVANE_SIM_PORT + "/health (invented devices, synthetic beats)");
+    console.log("  Mail: local SMTP sink on 127.0.0.1:" + process.env.CORVANE_SMTP_SINK_PORT + "; read it on the Mailbox page (administrator)");
   })')
 fi
 cat <<EOF

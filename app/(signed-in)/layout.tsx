@@ -35,7 +35,7 @@ export default async function SignedInLayout({ children }: { children: React.Rea
               Demo data · {DEMO_HOSPITAL}
             </p>
           )}
-          <NavLinks items={navItems(actor.grants)} units={units} />
+          <NavLinks items={navItems(actor.grants, { demoMode: process.env.CORVANE_DEMO_MODE === "1" })} units={units} />
           <div className="ml-auto flex flex-wrap items-center gap-4">
             <UnitSwitcher units={units} censusUnitIds={unitsWhere(actor.grants, "census.view")} />
             <p className="text-sm">

@@ -2,26 +2,35 @@
 import type { NavItem } from "@/components/shell/NavLinks";
 import { can, unitsWhere, type Grant } from "./roles";
 
-export function navItems(grants: readonly Grant[]): NavItem[] {
+export function navItems(grants: readonly Grant[], opts: { demoMode?: boolean } = {}): NavItem[] {
   const items: NavItem[] = [];
   const trendUnits = unitsWhere(grants, "trends.view");
   if (trendUnits.length) {
     items.push({ label: "Ward overview", href: { unitScreen: "overview", unitIds: trendUnits }, matchPrefix: "^/(units/[^/]+/overview|stays/[^/]+/(night|window))" });
     items.push({ label: "Handoff summary", href: { unitScreen: "handoff", unitIds: trendUnits }, matchPrefix: "^/(units|stays)/[^/]+/handoff" });
   }
+  const queueUnits = unitsWhere(grants, "queue.view");
+  if (queueUnits.length) {
+    items.push({ label: "Review queue", href: { unitScreen: "queue", unitIds: queueUnits }, matchPrefix: "^/units/[^/]+/queue" });
+  }
   const censusUnits = unitsWhere(grants, "census.view");
   if (censusUnits.length) {
     items.push({ label: "Census", href: { unitScreen: "census", unitIds: censusUnits }, matchPrefix: "^/units/[^/]+/census" });
   }
   if (can(grants, "people.manage")) items.push({ label: "People", href: "/people", matchPrefix: "^/people" });
+  const ruleUnits = unitsWhere(grants, "rules.manage");
+  if (ruleUnits.length) items.push({ label: "Rule sets", href: { unitScreen: "rules", unitIds: ruleUnits }, matchPrefix: "^/units/[^/]+/rules" });
+  if (opts.demoMode && can(grants, "mailbox.view")) items.push({ label: "Mailbox", href: "/mailbox", matchPrefix: "^/mailbox" });
   if (can(grants, "audit.view")) items.push({ label: "Audit trail", href: "/audit", matchPrefix: "^/audit" });
   return items;
 }
 
-/** Each role's first screen: clinicians and charge nurses the Ward overview, biomedical engineers the census, admins
- *  People, quality the audit trail. */
+/** Each role's first screen: charge nurses the Review queue they work, clinicians the Ward overview, biomedical
+ *  engineers the census, admins People, quality the audit trail. */
 export function landingPath(grants: readonly Grant[]): string | null {
-  const clinical = grants.find((g) => g.role === "clinician" || g.role === "charge_nurse");
+  const nurse = grants.find((g) => g.role === "charge_nurse");
+  if (nurse) return `/units/${nurse.unitId}/queue`;
+  const clinical = grants.find((g) => g.role === "clinician");
   if (clinical) return `/units/${clinical.unitId}/overview`;
   const biomed = grants.find((g) => g.role === "biomed");
   if (biomed) return `/units/${biomed.unitId}/census`;

@@ -27,6 +27,14 @@ export const PERMISSIONS = {
   "annotations.write": ["clinician", "charge_nurse"],
   /** The clinician's note on a patient's Handoff summary. */
   "handoff.write": ["clinician"],
+  /** The Review queue of a unit, read-only (clinicians see what the charge nurse works). */
+  "queue.view": ["clinician", "charge_nurse"],
+  /** Work the Review queue: acknowledge with a reason, escalate to a clinician, resolve. */
+  "queue.act": ["charge_nurse"],
+  /** Rule sets of a unit: view, preview and save a new version. */
+  "rules.manage": ["admin"],
+  /** The demo Mailbox: messages the local SMTP sink received. */
+  "mailbox.view": ["admin"],
   /** People: create, change roles, deactivate. */
   "people.manage": ["admin"],
   /** Audit trail and chain check (read-only). */

@@ -26,6 +26,9 @@ export const ROUTE_ACCESS: Record<string, Access> = {
   "/stays/[stayId]/night": { kind: "permission", permission: "trends.view", stayParam: "stayId" },
   "/stays/[stayId]/window": { kind: "permission", permission: "trends.view", stayParam: "stayId" },
   "/stays/[stayId]/handoff": { kind: "permission", permission: "trends.view", stayParam: "stayId" },
+  "/units/[unitId]/queue": { kind: "permission", permission: "queue.view", unitParam: "unitId" },
+  "/units/[unitId]/rules": { kind: "permission", permission: "rules.manage", unitParam: "unitId" },
+  "/mailbox": { kind: "permission", permission: "mailbox.view" },
   "/people": { kind: "permission", permission: "people.manage" },
   "/people/new": { kind: "permission", permission: "people.manage" },
   "/people/[userId]": { kind: "permission", permission: "people.manage" },
@@ -38,6 +41,7 @@ export const ROUTE_ACCESS: Record<string, Access> = {
   "/api/stays/[stayId]/beats": { kind: "permission", permission: "trends.view", stayParam: "stayId" },
   "/api/stays/[stayId]/window": { kind: "permission", permission: "trends.view", stayParam: "stayId" },
   "/api/stays/[stayId]/window/research": { kind: "permission", permission: "trends.view", stayParam: "stayId" },
+  "/api/units/[unitId]/queue": { kind: "permission", permission: "queue.view", unitParam: "unitId" },
   // Events are filtered per unit inside the handler.
   "/api/live": { kind: "signed_in", streaming: true },
   // Also open to the scheduler's secret header, checked by the handler itself.
@@ -53,4 +57,9 @@ export const ACTION_ACCESS: Record<string, Access> = {
   createAnnotation: { kind: "permission", permission: "annotations.write" },
   updateAnnotation: { kind: "permission", permission: "annotations.write" },
   saveHandoffNote: { kind: "permission", permission: "handoff.write" },
+  acknowledgeFlag: { kind: "permission", permission: "queue.act" },
+  escalateFlag: { kind: "permission", permission: "queue.act" },
+  resolveFlag: { kind: "permission", permission: "queue.act" },
+  previewRuleSet: { kind: "permission", permission: "rules.manage" },
+  saveRuleSet: { kind: "permission", permission: "rules.manage" },
 };

@@ -21,9 +21,14 @@ export interface UnitRow {
   /** Local "HH:MM" the unit's review night starts and ends (migrations/20261202000100_review.ts). */
   night_starts_at: string;
   night_ends_at: string;
+  /** Review queue targets, minutes (migrations/20261202000300_review_queue.ts). */
+  ack_target_minutes: number;
+  remind_after_minutes: number;
+  escalate_after_minutes: number;
   created_at: Date;
 }
-export type UnitInsert = Omit<UnitRow, "id" | "created_at" | "night_starts_at" | "night_ends_at"> & Partial<Pick<UnitRow, "night_starts_at" | "night_ends_at">>;
+type UnitDefaults = "night_starts_at" | "night_ends_at" | "ack_target_minutes" | "remind_after_minutes" | "escalate_after_minutes";
+export type UnitInsert = Omit<UnitRow, "id" | "created_at" | UnitDefaults> & Partial<Pick<UnitRow, UnitDefaults>>;
 
 export interface BedRow {
   id: string;
@@ -238,6 +243,8 @@ export interface FlagRow {
   raised_at: Date;
   previous_flag_id: string | null;
   details: Record<string, unknown>;
+  /** Bumped by every transition (optimistic concurrency). */
+  version: number;
 }
 
 export interface ComputeRunRow {
@@ -263,7 +270,7 @@ declare module "knex/types/tables" {
     index_windows: Knex.CompositeTableType<IndexWindowRow, IndexWindowInsert, Partial<IndexWindowInsert>>;
     baselines: Knex.CompositeTableType<BaselineRow, Omit<BaselineRow, "computed_at">, Partial<BaselineRow>>;
     rule_sets: Knex.CompositeTableType<RuleSetRow, Omit<RuleSetRow, "id" | "created_at" | "is_default" | "note"> & Partial<Pick<RuleSetRow, "is_default" | "note">>, never>;
-    flags: Knex.CompositeTableType<FlagRow, Omit<FlagRow, "id" | "raised_at" | "state" | "previous_flag_id" | "details"> & Partial<Pick<FlagRow, "state" | "previous_flag_id" | "details" | "raised_at">>, Partial<FlagRow>>;
+    flags: Knex.CompositeTableType<FlagRow, Omit<FlagRow, "id" | "raised_at" | "state" | "previous_flag_id" | "details" | "version"> & Partial<Pick<FlagRow, "state" | "previous_flag_id" | "details" | "raised_at" | "version">>, Partial<FlagRow>>;
     compute_runs: Knex.CompositeTableType<ComputeRunRow, Pick<ComputeRunRow, "algorithm_version" | "trigger"> & Partial<ComputeRunRow>, Partial<ComputeRunRow>>;
   }
 }
@@ -309,5 +316,62 @@ declare module "knex/types/tables" {
       Pick<HandoffNoteRow, "stay_id" | "night" | "note" | "updated_by">,
       Partial<Pick<HandoffNoteRow, "note" | "updated_by" | "updated_at" | "version">>
     >;
+  }
+}
+
+// ---- review queue and e-mail (migrations/20261202000300_review_queue.ts) ----
+
+export const ACK_REASONS = ["artifact_or_poor_signal", "known_rhythm", "expected_clinical_context", "reviewed_no_action"] as const;
+export type AckReason = (typeof ACK_REASONS)[number];
+
+export interface FlagEventRow {
+  id: string;
+  flag_id: string;
+  from_state: FlagState;
+  to_state: FlagState;
+  reason: AckReason | null;
+  note: string | null;
+  recipient_id: string | null;
+  actor_id: string | null;
+  at: Date;
+}
+
+export type MailKind = "escalation" | "reminder" | "reminder_escalation";
+export interface MailOutboxRow {
+  id: string;
+  kind: MailKind;
+  to_address: string;
+  subject: string;
+  body_text: string;
+  dedupe_key: string;
+  flag_id: string | null;
+  status: "queued" | "sent" | "failed";
+  attempts: number;
+  next_attempt_at: Date;
+  last_error: string | null;
+  created_at: Date;
+  sent_at: Date | null;
+}
+
+export interface MailReceivedRow {
+  id: string;
+  received_at: Date;
+  envelope_from: string | null;
+  envelope_to: string[];
+  subject: string | null;
+  body_text: string | null;
+  message_id: string | null;
+  raw: string;
+}
+
+declare module "knex/types/tables" {
+  interface Tables {
+    flag_events: Knex.CompositeTableType<FlagEventRow, Omit<FlagEventRow, "id" | "at"> & Partial<Pick<FlagEventRow, "at">>, never>;
+    mail_outbox: Knex.CompositeTableType<
+      MailOutboxRow,
+      Pick<MailOutboxRow, "kind" | "to_address" | "subject" | "body_text" | "dedupe_key"> & Partial<Pick<MailOutboxRow, "flag_id" | "next_attempt_at">>,
+      Partial<Pick<MailOutboxRow, "status" | "attempts" | "next_attempt_at" | "last_error" | "sent_at">>
+    >;
+    mail_received: Knex.CompositeTableType<MailReceivedRow, Omit<MailReceivedRow, "id" | "received_at">, never>;
   }
 }

@@ -4,7 +4,7 @@ test.describe("census and audit trail", () => {
   test("the census lists the unit's 12 beds with current stays, times in the unit's zone, and the caution", async ({ page }) => {
     await page.goto("/signin");
     await signIn(page, "charge_nurse");
-    await expect(page).toHaveURL(/\/overview$/);
+    await expect(page).toHaveURL(/\/queue$/);
     await page.getByRole("navigation", { name: "Main" }).getByRole("link", { name: "Census" }).click();
     await expect(page).toHaveURL(/\/census$/);
     await expect(page.getByRole("heading", { level: 1, name: "4 West Step-Down" })).toBeVisible();

@@ -63,6 +63,6 @@ test.describe("People (administrator)", () => {
     await signIn(page, "clinician");
     await expect(page).toHaveURL(/\/forbidden$/);
     await expect(page.getByRole("heading", { name: "Not available to your roles" })).toBeVisible();
-    await expect(page.getByRole("navigation", { name: "Main" }).getByRole("link")).toHaveText(["Ward overview", "Handoff summary", "Census"]);
+    await expect(page.getByRole("navigation", { name: "Main" }).getByRole("link")).toHaveText(["Ward overview", "Handoff summary", "Review queue", "Census"]);
   });
 });

@@ -127,6 +127,8 @@ test.describe("clinician morning review", () => {
   test("a charge nurse sees the same unit's overview", async ({ page }) => {
     await page.goto("/signin");
     await signIn(page, "charge_nurse");
+    await expect(page).toHaveURL(new RegExp(`/units/${ids.unit4W}/queue$`));
+    await page.getByRole("navigation", { name: "Main" }).getByRole("link", { name: "Ward overview" }).click();
     await expect(page).toHaveURL(new RegExp(`/units/${ids.unit4W}/overview$`));
     await cautionInView(page);
     await expect(page.getByRole("table").first().getByRole("row", { name: /4W-02/ })).toBeVisible();

@@ -15,7 +15,7 @@ test.describe("sign-in", () => {
 
   const landings = [
     { role: "clinician", url: /\/units\/[0-9a-f-]+\/overview$/, heading: "4 West Step-Down" },
-    { role: "charge_nurse", url: /\/units\/[0-9a-f-]+\/overview$/, heading: "4 West Step-Down" },
+    { role: "charge_nurse", url: /\/units\/[0-9a-f-]+\/queue$/, heading: "4 West Step-Down" },
     { role: "biomed", url: /\/units\/[0-9a-f-]+\/census$/, heading: /Step-Down|Neonatal/ },
     { role: "admin", url: /\/people$/, heading: "People" },
     { role: "quality", url: /\/audit$/, heading: "Audit trail" },
@@ -27,7 +27,7 @@ test.describe("sign-in", () => {
       await expect(page).toHaveURL(l.url);
       await expect(page.getByRole("heading", { level: 1, name: l.heading })).toBeVisible();
       await expect(page.getByRole("banner").getByText(demoPerson(l.role).name)).toBeVisible();
-      if (/census|overview/.test(l.url.source)) await expect(page.getByLabel("Decision-support caution")).toContainText(CAUTION);
+      if (/census|overview|queue/.test(l.url.source)) await expect(page.getByLabel("Decision-support caution")).toContainText(CAUTION);
     });
   }
 

@@ -32,8 +32,8 @@ describe("migrations", () => {
     expect(first.tables.map((t: { table_name: string }) => t.table_name)).toEqual(
       [
         "audit_events", "baselines", "beats", "beats_default", "beds", "clinical_annotations", "computation_params",
-        "compute_runs", "device_assignments", "device_stream_status", "devices", "flags", "handoff_notes", "index_windows",
-        "patients", "rule_sets", "stays", "units", "user_unit_roles", "users",
+        "compute_runs", "device_assignments", "device_stream_status", "devices", "flag_events", "flags", "handoff_notes",
+        "index_windows", "mail_outbox", "mail_received", "patients", "rule_sets", "stays", "units", "user_unit_roles", "users",
       ],
     );
     expect(first.triggers.map((t: { tgname: string }) => t.tgname)).toEqual(["audit_events_no_truncate", "audit_events_no_update_delete"]);

@@ -39,7 +39,7 @@ describe("permission map", () => {
 describe("landing and navigation", () => {
   it("lands each role on its first screen", () => {
     expect(landingPath([{ unitId: U1, role: "clinician" }])).toBe(`/units/${U1}/overview`);
-    expect(landingPath([{ unitId: U1, role: "charge_nurse" }])).toBe(`/units/${U1}/overview`);
+    expect(landingPath([{ unitId: U1, role: "charge_nurse" }])).toBe(`/units/${U1}/queue`);
     expect(landingPath([{ unitId: U2, role: "biomed" }, { unitId: U1, role: "clinician" }])).toBe(`/units/${U1}/overview`);
     expect(landingPath([{ unitId: U2, role: "biomed" }])).toBe(`/units/${U2}/census`);
     expect(landingPath([{ unitId: U1, role: "admin" }])).toBe("/people");
@@ -49,9 +49,10 @@ describe("landing and navigation", () => {
 
   it("offers only screens the roles may use", () => {
     expect(navItems([{ unitId: U1, role: "quality" }]).map((i) => i.label)).toEqual(["Audit trail"]);
-    expect(navItems([{ unitId: U1, role: "clinician" }]).map((i) => i.label)).toEqual(["Ward overview", "Handoff summary", "Census"]);
+    expect(navItems([{ unitId: U1, role: "clinician" }]).map((i) => i.label)).toEqual(["Ward overview", "Handoff summary", "Review queue", "Census"]);
     expect(navItems([{ unitId: U1, role: "biomed" }]).map((i) => i.label)).toEqual(["Census"]);
-    expect(navItems([{ unitId: U1, role: "admin" }]).map((i) => i.label)).toEqual(["Census", "People"]);
+    expect(navItems([{ unitId: U1, role: "admin" }]).map((i) => i.label)).toEqual(["Census", "People", "Rule sets"]);
+    expect(navItems([{ unitId: U1, role: "admin" }], { demoMode: true }).map((i) => i.label)).toEqual(["Census", "People", "Rule sets", "Mailbox"]);
     expect(navItems([])).toEqual([]);
   });
 });
