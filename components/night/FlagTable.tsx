@@ -4,6 +4,7 @@
 import Link from "next/link";
 import type { FlagViewDTO } from "@/lib/review/flags-view";
 import { clock, windowHref } from "./format";
+import { SeverityTag } from "@/components/flags/SeverityTag";
 
 const STATE_WORDS: Record<FlagViewDTO["state"], string> = {
   open: "open",
@@ -12,19 +13,6 @@ const STATE_WORDS: Record<FlagViewDTO["state"], string> = {
   resolved: "resolved",
 };
 
-/** The severity as on the charts: diagonal hatch for watch, cross-hatch for review, with the word beside it. */
-function SeverityTag({ severity }: { severity: FlagViewDTO["severity"] }) {
-  return (
-    <span className="inline-flex items-center gap-1.5 font-bold">
-      <svg aria-hidden="true" viewBox="0 0 16 16" className="h-4 w-4 shrink-0 text-caution">
-        <rect x="1" y="1" width="14" height="14" fill="none" stroke="currentColor" strokeWidth={severity === "review" ? 2 : 1.2} strokeDasharray={severity === "review" ? undefined : "3 2"} />
-        <path d="M1 15 L15 1 M1 8 L8 1 M8 15 L15 8" stroke="currentColor" strokeWidth="1" />
-        {severity === "review" && <path d="M1 1 L15 15 M1 8 L8 15 M8 1 L15 8" stroke="currentColor" strokeWidth="1" />}
-      </svg>
-      {severity}
-    </span>
-  );
-}
 
 export function FlagTable({ stayId, flags, timeZone, untilS, onShow }: {
   stayId: string;

@@ -12,6 +12,7 @@ import type { ClinicianDTO, QueueDTO, QueueFlagDTO } from "@/lib/queue/repositor
 import { FlagActions } from "./FlagActions";
 import { QueueChart } from "./QueueChart";
 import { clock, waitingWords, windowHref } from "./format";
+import { SeverityTag } from "@/components/flags/SeverityTag";
 
 const REFRESH_MS = 60_000;
 /** After a live event, wait this long for more before refetching. */
@@ -23,19 +24,6 @@ async function fetchQueue(url: string): Promise<QueueDTO> {
   return (await res.json()) as QueueDTO;
 }
 
-/** Severity as on the Night review: dashed box with a hatch for watch, solid cross-hatched box for review. */
-function SeverityTag({ severity }: { severity: QueueFlagDTO["severity"] }) {
-  return (
-    <span className="inline-flex items-center gap-1.5 font-bold">
-      <svg aria-hidden="true" viewBox="0 0 16 16" className="h-4 w-4 shrink-0 text-caution">
-        <rect x="1" y="1" width="14" height="14" fill="none" stroke="currentColor" strokeWidth={severity === "review" ? 2 : 1.2} strokeDasharray={severity === "review" ? undefined : "3 2"} />
-        <path d="M1 15 L15 1 M1 8 L8 1 M8 15 L15 8" stroke="currentColor" strokeWidth="1" />
-        {severity === "review" && <path d="M1 1 L15 15 M1 8 L8 15 M8 1 L15 8" stroke="currentColor" strokeWidth="1" />}
-      </svg>
-      <span className="sr-only">Severity: </span>{severity}
-    </span>
-  );
-}
 
 const STATE_SHAPES: Record<QueueFlagDTO["state"], string> = { open: "○", acknowledged: "◐", escalated: "▲", resolved: "●" };
 
