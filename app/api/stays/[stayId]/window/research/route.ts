@@ -1,29 +1,8 @@
 // The Research panel of one window: chaos and power-law measures on the hour around it, with their caveats. Research
-// only, never used for flags. Without ?start the stay's latest window; a stay with no window yet answers 200 with
-// window: null. Guarded by role and the stay's unit; each read audited.
-import { auditAs } from "@/lib/auth/guard";
+// only, never used for flags (lib/review/window-route.ts: guarded by role and the stay's unit, each read audited).
 import { windowResearch } from "@/lib/review/research";
-import { guardStayApi } from "@/lib/review/stay-guard";
-import { windowQuerySchema } from "@/lib/review/window-detail";
+import { windowRoute } from "@/lib/review/window-route";
 
 export const dynamic = "force-dynamic";
 
-const json = (status: number, body: unknown) => Response.json(body, { status, headers: { "Cache-Control": "no-store" } });
-
-export async function GET(req: Request, { params }: { params: Promise<{ stayId: string }> }) {
-  const query = windowQuerySchema.safeParse(Object.fromEntries(new URL(req.url).searchParams));
-  const guard = await guardStayApi("trends.view", (await params).stayId);
-  if (!guard.ok) return guard.response;
-  if (!query.success) return json(400, { error: "bad_request", message: query.error.issues[0]?.message ?? "Bad query." });
-  const { actor, stay } = guard;
-  const dto = await windowResearch(stay, query.data.start ?? null);
-  if (!dto) return json(404, { error: "not_found", message: "No stored window of this stay starts at that time." });
-  await auditAs(actor, {
-    action: "window.research.view",
-    permission: "trends.view",
-    unitId: stay.unitId,
-    target: { type: "stay", id: stay.stayId },
-    detail: { window_start: dto.window?.start ?? null, via: "api" },
-  });
-  return json(200, dto);
-}
+export const GET = windowRoute("window.research.view", (stay, start) => windowResearch(stay, start));
