@@ -9,7 +9,8 @@ const base = process.env.CORVANE_BENCH_URL ?? "http://127.0.0.1:3300";
 const data = JSON.parse(process.env.CORVANE_BENCH_DATA ?? "null") as { unitId: string; stayIds: string[]; email: string; password: string } | null;
 if (!data) throw new Error("CORVANE_BENCH_DATA (the JSON line of scripts/bench-ui-data.ts) is not set");
 const SECONDS = Number(process.env.CORVANE_BENCH_SECONDS ?? 15);
-const CONNECTIONS = 2;
+/** Concurrent connections per route (CORVANE_BENCH_CONNECTIONS; 2 = one per core of this machine). */
+const CONNECTIONS = Number(process.env.CORVANE_BENCH_CONNECTIONS ?? 2);
 const PAGE_LOADS = 7;
 
 /** Signs in through next-auth's credentials endpoint and returns the session cookie header. */
