@@ -84,6 +84,8 @@ export async function runReminders(db: Knex, now: Date = new Date()): Promise<Re
       .join("stays as s", "s.id", "f.stay_id")
       .join("beds as b", "b.id", "s.bed_id")
       .where("f.state", "open")
+      // A patient who has left the unit is not at the bedside to be reviewed: the flag stays in the queue, unreminded.
+      .where((q) => q.whereNull("s.discharged_at").orWhere("s.discharged_at", ">", now))
       .andWhereRaw("f.raised_at <= ?::timestamptz - make_interval(mins => u.remind_after_minutes)", [now])
       .orderBy([{ column: "f.raised_at" }, { column: "f.id" }])
       .select(

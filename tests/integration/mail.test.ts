@@ -192,6 +192,15 @@ describe("the reminder job, on a controlled clock", () => {
       })
       .returning("id");
     flagId = flag!.id;
+    // A flag of a patient already discharged from the unit waits in the queue but is never reminded.
+    const left = DEMO_STAYS.find((x) => x.unitCode === "4W" && x.dischargedHoursAgo)!;
+    const l = await db("stays as s").join("patients as p", "p.id", "s.patient_id").where("p.record_number", left.recordNumber).first("s.id", "s.discharged_at");
+    expect(l!.discharged_at!.getTime()).toBeLessThan(RAISED.getTime());
+    await db("flags").insert({
+      stay_id: l!.id, unit_id: unitId, rule_set_id: ruleSet!.id, rule_set_version: ruleSet!.version, rule_id: "sdnn-below-half-baseline",
+      severity: "watch", state: "open", condition_from: new Date(RAISED.getTime() - 15 * MIN), condition_to: null, raised_at: RAISED,
+      details: { rule: { label: "SDNN below 50 % of the patient's baseline for 15 minutes" } },
+    });
     // An inactive charge nurse of the unit is never written to.
     const [gone] = await db("users").insert({ email: "former.charge@larkspur.example", name: "Former Charge (fictional)", password_hash: "x", active: false }).returning("id");
     await db("user_unit_roles").insert({ user_id: gone!.id, unit_id: unitId, role: "charge_nurse", granted_by: null });
