@@ -3,9 +3,9 @@
 // for the demo Mailbox. A thin wrapper over lib/mail/sink.
 import { parseArgs } from "node:util";
 import { db } from "@/lib/db/knex";
-import { logger } from "@/lib/log";
 import { mailConfig } from "@/lib/mail/config";
 import { createMailSink } from "@/lib/mail/sink";
+import { closeOnSignal, runScript } from "./process";
 
 const USAGE = `usage: tsx scripts/mail-sink.ts [options]
 
@@ -46,29 +46,7 @@ async function main(): Promise<number> {
     return 0;
   }
   const sink = await createMailSink({ db, port: args.port, host: "127.0.0.1" });
-  return new Promise<number>((resolve) => {
-    const stop = (signal: NodeJS.Signals) => {
-      logger.info({ signal }, "mail sink stopping");
-      sink
-        .close()
-        .then(() => db.destroy())
-        .then(
-          () => resolve(0),
-          (err: unknown) => {
-            logger.error({ err }, "mail sink did not close cleanly");
-            resolve(1);
-          },
-        );
-    };
-    process.once("SIGINT", stop);
-    process.once("SIGTERM", stop);
-  });
+  return closeOnSignal("mail sink", () => sink.close().then(() => db.destroy()));
 }
 
-main().then(
-  (code) => process.exit(code),
-  (err: unknown) => {
-    console.error(`mail-sink: ${err instanceof Error ? err.message : String(err)}`);
-    process.exit(1);
-  },
-);
+runScript("mail-sink", main);

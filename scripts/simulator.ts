@@ -8,6 +8,7 @@ import { loadSimulatedDevices } from "@/lib/simulator/load-devices";
 import { FileSeqLedger } from "@/lib/simulator/seq-ledger";
 import { createSimulatorServer } from "@/lib/simulator/server";
 import { DEFAULT_SIMULATOR_PORT, simulatorStreamUrl } from "@/seeds/demo-data";
+import { closeOnSignal, runScript } from "./process";
 
 const USAGE = `usage: tsx scripts/simulator.ts [options]
 
@@ -96,26 +97,7 @@ async function main(): Promise<number> {
   const seqLedger = args.seqLedger ? new FileSeqLedger(args.seqLedger) : undefined;
   const sim = createSimulatorServer({ devices, speed: args.speed, truth: args.truth, backfill: args.backfill, seqLedger });
   await sim.listen(args.port);
-  return new Promise<number>((resolve) => {
-    const stop = (signal: NodeJS.Signals) => {
-      logger.info({ signal }, "simulator stopping");
-      sim.close().then(
-        () => resolve(0),
-        (err: unknown) => {
-          logger.error({ err }, "simulator did not close cleanly");
-          resolve(1);
-        },
-      );
-    };
-    process.once("SIGINT", stop);
-    process.once("SIGTERM", stop);
-  });
+  return closeOnSignal("simulator", () => sim.close());
 }
 
-main().then(
-  (code) => process.exit(code),
-  (err: unknown) => {
-    console.error(`simulator: ${err instanceof Error ? err.message : String(err)}`);
-    process.exit(1);
-  },
-);
+runScript("simulator", main);
