@@ -69,11 +69,18 @@ describe("mail settings", () => {
   });
 });
 
+/**
+ * "Now" for a delivery run right after an enqueue. JavaScript's clock has millisecond resolution and PostgreSQL's now()
+ * microseconds, so a Date taken in the same millisecond as the insert can read earlier than the row's
+ * next_attempt_at and leave it out; the scheduler's runs are a minute apart, so a second is well inside real use.
+ */
+const justAfter = () => new Date(Date.now() + 1000);
+
 describe("delivery through the outbox", () => {
   it("delivers an enqueued message to the sink with its subject and body", async () => {
     const sink = await startSink();
     await enqueueMail(db, { kind: "escalation", to: "clinician@larkspur.example", subject: "Escalated flag — bed 4W-03", text: "Bed: 4W-03\nLink: http://127.0.0.1:3000/units/x/queue", dedupeKey: "test:deliver:1" });
-    const counts = await deliverDue(db, transportTo(sink.port));
+    const counts = await deliverDue(db, transportTo(sink.port), justAfter());
     expect(counts).toEqual({ claimed: 1, sent: 1, retrying: 0, failed: 0 });
     const received = (await db("mail_received").first("*"))!;
     expect(received).toMatchObject({ subject: "Escalated flag — bed 4W-03", envelope_to: ["clinician@larkspur.example"] });
@@ -82,7 +89,7 @@ describe("delivery through the outbox", () => {
     expect(row).toMatchObject({ status: "sent", attempts: 1, last_error: null });
     expect(row.sent_at).toBeInstanceOf(Date);
     // Nothing is due any more: a second run sends nothing.
-    expect(await deliverDue(db, transportTo(sink.port))).toEqual({ claimed: 0, sent: 0, retrying: 0, failed: 0 });
+    expect(await deliverDue(db, transportTo(sink.port), justAfter())).toEqual({ claimed: 0, sent: 0, retrying: 0, failed: 0 });
   });
 
   it("with the relay down counts attempts and backs off, then delivers once the sink is up", async () => {
@@ -140,7 +147,8 @@ describe("delivery through the outbox", () => {
       await enqueueMail(db, { kind: "escalation", to: `clinician@larkspur.example`, subject: `Concurrent ${i}`, text: `message ${i}`, dedupeKey: `test:concurrent:${i}` });
     }
     // Each worker takes at most half: the second skips the rows the first holds and takes the other half.
-    const [a, b] = await Promise.all([deliverDue(db, transportTo(sink.port), new Date(), N / 2), deliverDue(db, transportTo(sink.port), new Date(), N / 2)]);
+    const now = justAfter();
+    const [a, b] = await Promise.all([deliverDue(db, transportTo(sink.port), now, N / 2), deliverDue(db, transportTo(sink.port), now, N / 2)]);
     expect([a.sent, b.sent]).toEqual([N / 2, N / 2]);
     const received = await db("mail_received").select("raw", "subject");
     expect(received).toHaveLength(N);
