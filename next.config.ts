@@ -4,6 +4,9 @@ const nextConfig: NextConfig = {
   // Loaded from node_modules at run time rather than bundled: native drivers and worker threads.
   serverExternalPackages: ["knex", "pg", "pino", "@node-rs/argon2"],
   poweredByHeader: false,
+  // Maintenance attachments (service reports up to 8 MB, lib/devices/attachments) and device CSV files are sent to
+  // server actions; the default 1 MB would refuse them before our own size check could explain why.
+  experimental: { serverActions: { bodySizeLimit: "9mb" } },
   // npm test builds into its own folder, so it can run while npm start serves .next.
   distDir: process.env.CORVANE_DIST_DIR ?? ".next",
   async headers() {

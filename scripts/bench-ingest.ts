@@ -39,7 +39,7 @@ async function makeDevices(n: number, prefix: string, url: (i: number) => string
     const [bed] = await db("beds").insert({ unit_id: unit[0]!.id, label: `${prefix}-${i}`, sort_order: i, active: true }).returning("id");
     const [dev] = await db("devices")
       .insert({
-        serial: `BENCH-${prefix}-${i}`, model: "synthetic", firmware: "0", timestamp_resolution_ms: 1, stream_url: url(i),
+        serial: `BENCH-${prefix}-${i}`, unit_id: unit[0]!.id, model: "synthetic", firmware: "0", timestamp_resolution_ms: 1, stream_url: url(i),
         stream_token_hash: hashStreamToken(token), stream_token_enc: encryptStreamToken(token),
       })
       .returning("id");

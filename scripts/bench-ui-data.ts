@@ -34,7 +34,7 @@ async function main(): Promise<void> {
       const [patient] = await trx("patients").insert({ record_number: `BENCH-${b}`, display_name: `Bench Patient ${b} (invented)`, birth_date: null }).returning("id");
       const [stay] = await trx("stays").insert({ patient_id: patient!.id, bed_id: bed!.id, admitted_at: admitted, discharged_at: null }).returning("id");
       const [device] = await trx("devices")
-        .insert({ serial: `BENCH-DEV-${b}`, model: "bench monitor", firmware: "0", timestamp_resolution_ms: 1, stream_url: "http://127.0.0.1:9/unused", stream_token_hash: `unused-${b}`, stream_token_enc: "unused" })
+        .insert({ serial: `BENCH-DEV-${b}`, unit_id: unitId, model: "bench monitor", firmware: "0", timestamp_resolution_ms: 1, stream_url: "http://127.0.0.1:9/unused", stream_token_hash: `unused-${b}`, stream_token_enc: "unused" })
         .returning("id");
       await trx("device_assignments").insert({ device_id: device!.id, bed_id: bed!.id, assigned_from: admitted, assigned_to: null, assigned_by: null });
       await trx("device_stream_status").insert({ device_id: device!.id, connected: true, last_seq: "1", last_seen_at: now, last_beat_at: now, gaps: 0, missing_seqs: "0", duplicates: 0, malformed: 0, malformed_by_kind: {}, reconnects: 0, clock_offset_ms: 0, lead_off: false, last_error: null, updated_at: now });

@@ -1,5 +1,5 @@
 #!/usr/bin/env bash
-# npm run bench[:engine|:ingest|:ui]: benchmarks, apart from the tests. The ingest and UI benchmarks get their own
+# npm run bench[:engine|:ingest|:ui|:audit]: benchmarks, apart from the tests. The ingest, UI and audit benchmarks get their own
 # PostgreSQL cluster (port 55434, fresh each run), so they never touch npm start's or npm test's data; the UI benchmark
 # also builds into its own folder (.next-bench) and serves it on 127.0.0.1:3300.
 set -euo pipefail
@@ -23,6 +23,11 @@ bench_database() { # name
   trap bench_cleanup EXIT
   if [ -z "${PG_PORT:-}" ]; then
     PG_DATA="$(pg_datadir bench)"
+    # Another benchmark may be using the cluster: deleting it under a running server voids that run.
+    if [ -f "$PG_DATA/postmaster.pid" ] && as_pg_owner "$PG_BIN/pg_ctl" -D "$PG_DATA" status >/dev/null 2>&1; then
+      log "a benchmark's PostgreSQL is already running in $PG_DATA; wait for it to finish (or stop it) and run again"
+      exit 1
+    fi
     rm -rf "$PG_DATA"
     pg_start bench "${CORVANE_BENCH_PG_PORT:-55434}"
   fi
@@ -35,6 +40,12 @@ bench_database() { # name
 if [ "$what" = ingest ] || [ "$what" = all ]; then
   bench_database corvane_bench
   node --import tsx scripts/bench-ingest.ts
+fi
+if [ "$what" = audit ] || [ "$what" = all ]; then
+  bench_database corvane_bench_audit
+  # react-server: lib files used by pages import "server-only", which only resolves to an empty module under that
+  # condition (as in Next's server bundle). --expose-gc: memory is measured from a collected heap.
+  node --conditions=react-server --expose-gc --import tsx scripts/bench-audit.ts
 fi
 if [ "$what" = ui ] || [ "$what" = all ]; then
   bench_database corvane_bench_ui

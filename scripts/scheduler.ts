@@ -4,9 +4,12 @@
 // (lib/compute/run.ts); this process only keeps time.
 // A second every-minute tick works the mail directly against the database (no app route): the reminder job
 // (lib/mail/reminders.ts) enqueues what is due, then the mail worker (lib/mail/deliver.ts) sends the outbox.
+// Every 10 minutes, and once at start-up, it signs a checkpoint of the audit trail's newest entry
+// (lib/audit/checkpoints.ts), so a later chain check also finds newest entries that were removed.
 import type { Transporter } from "nodemailer";
 import PgBoss from "pg-boss";
 import config from "@/knexfile";
+import { createCheckpoint } from "@/lib/audit/checkpoints";
 import { SCHEDULER_SECRET_HEADER } from "@/lib/compute/config";
 import { db } from "@/lib/db/knex";
 import { logger } from "@/lib/log";
@@ -16,6 +19,9 @@ import { runReminders } from "@/lib/mail/reminders";
 
 const QUEUE = "corvane-compute-tick";
 const MAIL_QUEUE = "corvane-mail-tick";
+const CHECKPOINT_QUEUE = "corvane-audit-checkpoint";
+/** A checkpoint is one short transaction; a minute is generous even behind a busy writer's lock. */
+const CHECKPOINT_TIMEOUT_S = 60;
 /** A mail tick sends at most 50 messages, each bounded by the transport's timeouts (lib/mail/config.ts). */
 const MAIL_TIMEOUT_S = 30 * 60;
 /** Longest a run may take before the tick gives up waiting (a first catch-up over several nights is the long case). */
@@ -72,6 +78,16 @@ async function mailTick(): Promise<void> {
   }
 }
 
+/** Signs the audit trail's newest entry; a failure is logged and the next tick tries again. */
+async function checkpointTick(reason: "schedule" | "start-up"): Promise<void> {
+  try {
+    const r = await createCheckpoint(db, new Date());
+    if (r.created) logger.info({ reason, checkpointId: r.id, auditSeq: r.seq }, "audit checkpoint signed");
+  } catch (err) {
+    logger.error({ err, reason }, "audit checkpoint failed; the next tick retries");
+  }
+}
+
 async function appAnswers(): Promise<boolean> {
   try {
     return (await fetch(`http://127.0.0.1:${port}/api/health`, { signal: AbortSignal.timeout(5_000) })).status < 500;
@@ -90,7 +106,12 @@ await boss.work(QUEUE, { pollingIntervalSeconds: 2, batchSize: 1 }, async () => 
 await boss.createQueue(MAIL_QUEUE, { name: MAIL_QUEUE, policy: "stately", retryLimit: 0, expireInSeconds: MAIL_TIMEOUT_S });
 await boss.schedule(MAIL_QUEUE, "* * * * *", {}, { tz: "UTC" });
 await boss.work(MAIL_QUEUE, { pollingIntervalSeconds: 2, batchSize: 1 }, async () => mailTick());
-logger.info({ queue: QUEUE, mailQueue: MAIL_QUEUE, computeUrl }, "scheduler running: compute and mail every minute");
+await boss.createQueue(CHECKPOINT_QUEUE, { name: CHECKPOINT_QUEUE, policy: "stately", retryLimit: 0, expireInSeconds: CHECKPOINT_TIMEOUT_S });
+await boss.schedule(CHECKPOINT_QUEUE, "*/10 * * * *", {}, { tz: "UTC" });
+await boss.work(CHECKPOINT_QUEUE, { pollingIntervalSeconds: 2, batchSize: 1 }, async () => checkpointTick("schedule"));
+logger.info({ queue: QUEUE, mailQueue: MAIL_QUEUE, checkpointQueue: CHECKPOINT_QUEUE, computeUrl }, "scheduler running: compute and mail every minute, audit checkpoint every 10 minutes");
+// The start-up checkpoint needs only the database, so it does not wait for the app.
+await checkpointTick("start-up");
 
 let stopping = false;
 const stop = async (signal: string) => {

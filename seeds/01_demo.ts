@@ -5,7 +5,7 @@ import { recordAudit } from "@/lib/audit/record";
 import { hashPassword } from "@/lib/auth/password";
 import { encryptStreamToken, generateStreamToken, hashStreamToken } from "@/lib/devices/stream-token";
 import {
-  BEDS_PER_UNIT, bedLabel, DEFAULT_SIMULATOR_PORT, DEMO_ASSIGNED_HOURS_AGO, DEMO_DEVICE_FIRMWARE, DEMO_DEVICE_MODEL,
+  BEDS_PER_UNIT, bedLabel, DEFAULT_SIMULATOR_PORT, DEMO_ASSIGNED_HOURS_AGO, DEMO_DEVICE_FIRMWARE, DEMO_DEVICE_MANUFACTURER, DEMO_DEVICE_MODEL,
   DEMO_PASSWORD, DEMO_PEOPLE, DEMO_STAYS, DEMO_TIME_ZONE, DEMO_UNITS, demoDeviceSerial, simulatorStreamUrl,
 } from "./demo-data";
 
@@ -90,7 +90,9 @@ export async function seed(knex: Knex): Promise<{ inserted: Record<string, numbe
           .insert({
             serial,
             model: DEMO_DEVICE_MODEL,
+            manufacturer: DEMO_DEVICE_MANUFACTURER,
             firmware: DEMO_DEVICE_FIRMWARE,
+            unit_id: unitIds.get(u.code)!,
             timestamp_resolution_ms: u.kind === "neonatal" ? 1 : 1000 / 128,
             stream_url: simulatorStreamUrl(simulatorPort, serial),
             stream_token_hash: hashStreamToken(token),

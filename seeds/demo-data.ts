@@ -122,6 +122,7 @@ export const DEMO_BED_SCENARIOS: Record<string, DemoScenario> = {
 
 export const DEMO_DEVICE_MODEL = "Larkspur demo monitor LM-2 (fictional)";
 export const DEMO_DEVICE_FIRMWARE = "2.4.1";
+export const DEMO_DEVICE_MANUFACTURER = "Larkspur Vitals Group (fictional)";
 /** The device at bed "4W-01" is "LVG-4W-01". */
 export const demoDeviceSerial = (bed: string) => `LVG-${bed}`;
 /** Where the device simulator serves each device's stream. */

@@ -1,4 +1,6 @@
+import { formatInTimeZone } from "date-fns-tz";
 import { z } from "zod";
+import { ROLES } from "@/lib/auth/roles";
 
 const seq = z
   .string()
@@ -7,14 +9,176 @@ const seq = z
   .transform((v) => (v ? v : undefined))
   .pipe(z.string().regex(/^[1-9][0-9]{0,17}$/, { error: "Enter an entry number (1 or more)." }).optional());
 
-/** Chain check over an optional range of entry numbers. */
+/** What <input type="datetime-local"> sends: "YYYY-MM-DDTHH:MM", seconds optional. */
+const localDateTime = z
+  .string()
+  .trim()
+  .optional()
+  .transform((v) => (v ? v : undefined))
+  .pipe(z.string().regex(/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}(:\d{2})?$/, { error: "Enter a date and a time." }).optional());
+
+/**
+ * Chain check over the whole trail or a range, either of entry numbers (`by: "seq"`, the default) or of local
+ * date-times read on the clock of a unit the person may audit (`by: "time"`; from included, until not). The other
+ * kind's fields are ignored. Local times become instants in the action, which knows the unit's zone.
+ */
 export const verifyChainSchema = z
-  .object({ fromSeq: seq, toSeq: seq })
-  .refine((v) => !v.fromSeq || !v.toSeq || BigInt(v.fromSeq) <= BigInt(v.toSeq), {
-    error: "The last entry must not come before the first.",
-    path: ["toSeq"],
+  .object({
+    by: z.preprocess((v) => (v === "" || v === null ? undefined : v), z.enum(["seq", "time"], { error: "Choose how to give the range." }).default("seq")),
+    fromSeq: seq,
+    toSeq: seq,
+    fromTime: localDateTime,
+    toTime: localDateTime,
+    unitId: z.preprocess((v) => (v === "" || v === null ? undefined : v), z.uuid({ error: "Choose a unit." }).optional()),
+  })
+  .superRefine((v, ctx) => {
+    if (v.by === "seq" && v.fromSeq && v.toSeq && BigInt(v.fromSeq) > BigInt(v.toSeq)) {
+      ctx.addIssue({ code: "custom", path: ["toSeq"], message: "The last entry must not come before the first." });
+    }
+    if (v.by === "time" && (v.fromTime || v.toTime) && !v.unitId) {
+      ctx.addIssue({ code: "custom", path: ["unitId"], message: "Choose the unit whose clock the times are read on." });
+    }
   });
 
-export const auditQuerySchema = z.object({
-  page: z.coerce.number().int().min(1).max(1_000_000).catch(1).default(1),
-});
+// ---- Audit trail search: one filter shared by the search page, the export route and the export manifest ----
+
+/** An empty form field is the same as an absent one. */
+const blankToUndefined = (v: unknown) => (typeof v === "string" && v.trim() === "" ? undefined : v);
+
+const LOCAL_DATE_TIME = /^(\d{4})-(\d{2})-(\d{2})T(\d{2}):(\d{2})(?::(\d{2}))?$/;
+const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+const DAY_MS = 86_400_000;
+
+export const AUDIT_OUTCOMES = ["success", "failure", "denied"] as const;
+export const AUDIT_EXPORT_FORMATS = ["csv", "fhir-ndjson"] as const;
+export type AuditExportFormat = (typeof AUDIT_EXPORT_FORMATS)[number];
+export const isUuid = (v: string) => UUID.test(v);
+
+function isTimeZone(zone: string): boolean {
+  try {
+    new Intl.DateTimeFormat("en-US", { timeZone: zone });
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+/**
+ * The wall-clock reading of an instant in a zone, as milliseconds of a UTC date with the same fields. (Through
+ * formatInTimeZone: date-fns-tz 3.2's getTimezoneOffset gives the later offset for the hours before a change.)
+ */
+function wallClock(instant: number, zone: string): number {
+  return Date.parse(`${formatInTimeZone(instant, zone, "yyyy-MM-dd'T'HH:mm:ss.SSS")}Z`);
+}
+
+/**
+ * A local date-time ("YYYY-MM-DDTHH:MM[:SS]") read on a zone's clock → the instant, DST-safe: the earliest instant
+ * whose wall-clock reading is at or after it. So a time repeated when clocks go back means its first occurrence
+ * (ranges from it take in both passes of the repeated hour), and a time skipped when clocks go forward means the
+ * moment of the change (nothing happened in the skipped hour). Returns null for an impossible date (30 February).
+ */
+export function localToUtc(local: string, zone: string): Date | null {
+  const m = LOCAL_DATE_TIME.exec(local);
+  if (!m) return null;
+  const [y, mo, d, h, mi, s] = m.slice(1).map((x) => Number(x ?? 0)) as [number, number, number, number, number, number];
+  const wall = Date.UTC(y, mo - 1, d, h, mi, s);
+  const check = new Date(wall);
+  if (check.getUTCFullYear() !== y || check.getUTCMonth() !== mo - 1 || check.getUTCDate() !== d || h > 23 || mi > 59 || s > 59) return null;
+  // A zone changes its offset at most once within a day either side (true of every IANA zone since 1970).
+  const offsets = [...new Set([-DAY_MS, 0, DAY_MS].map((k) => wallClock(wall + k, zone) - (wall + k)))];
+  const exact = offsets.map((o) => wall - o).filter((t) => wallClock(t, zone) === wall);
+  if (exact.length) return new Date(Math.min(...exact));
+  // In a gap: search the instants between the two readings for the first whose clock has passed `wall`.
+  let lo = Math.min(...offsets.map((o) => wall - o));
+  let hi = Math.max(...offsets.map((o) => wall - o));
+  while (hi - lo > 1) {
+    const mid = Math.floor((lo + hi) / 2);
+    if (wallClock(mid, zone) >= wall) hi = mid;
+    else lo = mid;
+  }
+  return new Date(hi);
+}
+
+const filterLocalDateTime = z.preprocess(
+  blankToUndefined,
+  z.string().trim().regex(LOCAL_DATE_TIME, { error: "Enter a date and a time, e.g. 2026-11-30T20:00." }).optional(),
+);
+const seqCursor = z.preprocess(
+  blankToUndefined,
+  z.string().trim().regex(/^[1-9][0-9]{0,17}$/, { error: "Not an entry number." }).optional(),
+);
+
+const filterFields = {
+  /** IANA zone whose clock `from` and `to` are read on (the page offers the zones of the reader's units). */
+  zone: z.preprocess(
+    blankToUndefined,
+    z.string().trim().refine(isTimeZone, { error: "Not a known time zone." }).default("UTC"),
+  ),
+  /** Entries at or after this local time … */
+  from: filterLocalDateTime,
+  /** … and before this one (not included), so consecutive ranges neither overlap nor leave a gap. */
+  to: filterLocalDateTime,
+  /** An e-mail address (any case) or a user id. */
+  person: z.preprocess(
+    blankToUndefined,
+    z
+      .string()
+      .trim()
+      .toLowerCase()
+      .max(254, { error: "Enter an e-mail address or a user id." })
+      .refine((v) => UUID.test(v) || /^[^\s@]+@[^\s@]+$/.test(v), { error: "Enter an e-mail address or a user id." })
+      .optional(),
+  ),
+  role: z.preprocess(blankToUndefined, z.enum(ROLES, { error: "Not a role." }).optional()),
+  /** A prefix of action codes: "device." for every device action, "flag.acknowledge" for one. */
+  action: z.preprocess(
+    blankToUndefined,
+    z
+      .string()
+      .trim()
+      .regex(/^[a-z0-9_.]{1,64}$/, { error: "Actions are lower-case words joined by dots, e.g. flag. or flag.acknowledge." })
+      .optional(),
+  ),
+  /** A stay id, or a patient's record number (every stay of that patient). */
+  patient: z.preprocess(
+    blankToUndefined,
+    z.string().trim().regex(/^[A-Za-z0-9][A-Za-z0-9._\-/]{0,63}$/, { error: "Enter a record number or a stay id." }).optional(),
+  ),
+  /** A device id or serial number. */
+  device: z.preprocess(
+    blankToUndefined,
+    z.string().trim().regex(/^[A-Za-z0-9][A-Za-z0-9._\-/]{0,63}$/, { error: "Enter a device serial number or id." }).optional(),
+  ),
+  outcome: z.preprocess(blankToUndefined, z.enum(AUDIT_OUTCOMES, { error: "Not an outcome." }).optional()),
+};
+
+function checkRange(v: { zone: string; from?: string; to?: string }, ctx: z.RefinementCtx) {
+  const from = v.from ? localToUtc(v.from, v.zone) : null;
+  const to = v.to ? localToUtc(v.to, v.zone) : null;
+  if (v.from && !from) ctx.addIssue({ code: "custom", path: ["from"], message: "That date does not exist." });
+  if (v.to && !to) ctx.addIssue({ code: "custom", path: ["to"], message: "That date does not exist." });
+  if (from && to && to.getTime() <= from.getTime()) {
+    ctx.addIssue({ code: "custom", path: ["to"], message: "The end must come after the start." });
+  }
+}
+
+/** The audit trail filter: every field optional (absent = any). */
+export const auditFilterSchema = z.object(filterFields).superRefine(checkRange);
+export type AuditFilter = z.infer<typeof auditFilterSchema>;
+
+/** The search page's query: the filter, and a keyset cursor (entries older than `before`, or newer than `after`). */
+export const auditSearchQuerySchema = z
+  .object({ ...filterFields, before: seqCursor, after: seqCursor })
+  .superRefine(checkRange)
+  .refine((v) => !(v.before && v.after), { error: "Use one page link at a time.", path: ["after"] });
+
+/** The export route's query: the filter and the file format (CSV when not given). */
+export const auditExportQuerySchema = z
+  .object({ ...filterFields, format: z.preprocess(blankToUndefined, z.enum(AUDIT_EXPORT_FORMATS, { error: "Choose csv or fhir-ndjson." }).default("csv")) })
+  .superRefine(checkRange);
+
+/** Only the filter's fields of a parsed query (drops the cursor or the format). */
+export function filterOf(v: AuditFilter): AuditFilter {
+  const { zone, from, to, person, role, action, patient, device, outcome } = v;
+  return { zone, from, to, person, role, action, patient, device, outcome };
+}

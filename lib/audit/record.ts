@@ -6,8 +6,11 @@ import { logger } from "@/lib/log";
 import type { AuditOutcome } from "@/lib/db/tables";
 import { chainHash, GENESIS_HASH, type ChainedFields } from "./chain";
 
-/** Arbitrary constant: the advisory-lock key that serialises writers, so the chain never forks. */
-const AUDIT_CHAIN_LOCK = 0x636f7276; // "corv"
+/**
+ * Arbitrary constant: the advisory-lock key that serialises writers, so the chain never forks. Checkpoints
+ * (lib/audit/checkpoints.ts) take it too, so the newest row they sign is the newest committed row.
+ */
+export const AUDIT_CHAIN_LOCK = 0x636f7276; // "corv"
 
 export interface AuditEntry {
   actor: { userId: string | null; email: string | null; role: string | null };

@@ -114,12 +114,13 @@ export async function guardApi(
   return { ok: true, actor };
 }
 
-/** FormData → plain object; repeated keys become arrays. */
+/** FormData → plain object; repeated keys become arrays. Uploaded files stay `File`s (an empty file input sends a
+ *  nameless empty file, dropped here as if nothing was chosen); the action's schema checks them like any field. */
 function formObject(form: FormData): Record<string, unknown> {
   const out: Record<string, unknown> = {};
   for (const key of new Set(form.keys())) {
     if (key.startsWith("$ACTION")) continue;
-    const all = form.getAll(key).filter((v): v is string => typeof v === "string");
+    const all = form.getAll(key).filter((v) => typeof v === "string" || (v.size > 0 || v.name !== ""));
     out[key] = all.length > 1 ? all : all[0];
   }
   return out;

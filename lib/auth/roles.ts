@@ -35,10 +35,18 @@ export const PERMISSIONS = {
   "rules.manage": ["admin"],
   /** The demo Mailbox: messages the local SMTP sink received. */
   "mailbox.view": ["admin"],
+  /** Device registry, stream health and maintenance log of the unit's devices (no clinical values), read-only;
+   *  includes downloading maintenance attachments. */
+  "devices.view": ["biomed"],
+  /** Register, edit, import, decommission devices; issue, rotate and revoke stream tokens; assign to beds; log
+   *  maintenance. */
+  "devices.manage": ["biomed"],
   /** People: create, change roles, deactivate. */
   "people.manage": ["admin"],
-  /** Audit trail and chain check (read-only). */
-  "audit.view": ["quality"],
+  /** Audit trail: search, detail, chain check, exports (read-only; an export is itself audited). */
+  "audit.view": ["quality", "admin"],
+  /** Quality metrics: response times, flag burden, coverage, and their CSV export. */
+  "metrics.view": ["quality"],
   /** Start a computation run by hand (the scheduler uses its own secret). */
   "jobs.run": ["admin"],
 } as const satisfies Record<string, readonly Role[]>;

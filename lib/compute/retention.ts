@@ -38,3 +38,18 @@ export async function dropExpiredBeatPartitions(db: Knex, retentionDays: number,
   }
   return dropped;
 }
+
+/**
+ * Deletes the stream-health minute samples (device_health_minutes) older than `retentionDays` days before `now`: the
+ * same retention as the beats, so the health charts never outlive the beats they describe. Returns the rows deleted.
+ */
+export async function deleteExpiredHealthMinutes(db: Knex, retentionDays: number, now: Date): Promise<number> {
+  if (!(Number.isInteger(retentionDays) && retentionDays >= 1)) throw new RangeError(`retention must be a whole number of days ≥ 1, got ${retentionDays}`);
+  const cutoff = new Date(now.getTime() - retentionDays * DAY_MS);
+  // Per device through the primary key (device_id, minute): a range scan each, rather than reading the whole table.
+  const { rowCount } = await db.raw<{ rowCount: number | null }>(
+    `DELETE FROM device_health_minutes m USING devices d WHERE m.device_id = d.id AND m.minute < ?`,
+    [cutoff],
+  );
+  return rowCount ?? 0;
+}

@@ -13,7 +13,7 @@ import type { BaselineSettings } from "./baseline";
 import { activeStays } from "./beats";
 import { computeConfig } from "./config";
 import { computationParams, storeComputationParams, type ComputationParams } from "./params";
-import { dropExpiredBeatPartitions } from "./retention";
+import { deleteExpiredHealthMinutes, dropExpiredBeatPartitions } from "./retention";
 import { computeStay } from "./stay";
 
 /** Advisory-lock key of the compute job ("comp"); the audit writer uses another key. */
@@ -130,6 +130,8 @@ async function runLocked(db: Knex, o: RunComputeOptions, summary: ComputeRunSumm
   const errors: string[] = [];
   try {
     summary.partitionsDropped = await dropExpiredBeatPartitions(db, cfg.CORVANE_BEAT_RETENTION_DAYS, now);
+    const healthMinutes = await deleteExpiredHealthMinutes(db, cfg.CORVANE_BEAT_RETENTION_DAYS, now);
+    if (healthMinutes) logger.info({ runId: summary.runId, rows: healthMinutes }, "expired stream-health minutes deleted");
     const stays = await activeStays(db, now, RECENT_DISCHARGE_MS);
     summary.stays = stays.length;
     const { ruleSets, invalid } = await rulesInForce(db, [...new Set(stays.map((s) => s.unitId))]);

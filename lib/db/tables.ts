@@ -123,23 +123,42 @@ export const RULE_SETS = "rule_sets";
 export const FLAGS = "flags";
 export const COMPUTE_RUNS = "compute_runs";
 
-export type DeviceStatus = "active" | "maintenance" | "retired";
+export const DEVICE_STATUSES = ["active", "maintenance", "decommissioned"] as const;
+export type DeviceStatus = (typeof DEVICE_STATUSES)[number];
 export interface DeviceRow {
   id: string;
   serial: string;
   model: string;
+  manufacturer: string;
   firmware: string;
+  /** RR (beat timestamp) resolution, ms. */
   timestamp_resolution_ms: number;
   stream_url: string;
-  stream_token_hash: string;
-  stream_token_enc: string;
-  token_rotated_at: Date;
+  notes: string;
+  /** Home unit (migrations/20261202000400_device_registry.ts). */
+  unit_id: string;
+  /** Null before a token is issued and after it is revoked. */
+  stream_token_hash: string | null;
+  stream_token_enc: string | null;
+  /** When the current token was issued (first issue or rotation). */
+  token_rotated_at: Date | null;
+  previous_token_hash: string | null;
+  previous_token_enc: string | null;
+  previous_token_valid_until: Date | null;
+  token_revoked_at: Date | null;
   status: DeviceStatus;
+  registered_by: string | null;
+  decommissioned_at: Date | null;
+  decommissioned_by: string | null;
+  decommission_reason: string | null;
   created_at: Date;
   updated_at: Date;
 }
-export type DeviceInsert = Omit<DeviceRow, "id" | "created_at" | "updated_at" | "token_rotated_at" | "status"> &
-  Partial<Pick<DeviceRow, "status" | "token_rotated_at">>;
+type DeviceOptional =
+  | "token_rotated_at" | "status" | "manufacturer" | "notes" | "registered_by" | "previous_token_hash" | "previous_token_enc"
+  | "previous_token_valid_until" | "token_revoked_at" | "decommissioned_at" | "decommissioned_by" | "decommission_reason"
+  | "stream_token_hash" | "stream_token_enc";
+export type DeviceInsert = Omit<DeviceRow, "id" | "created_at" | "updated_at" | DeviceOptional> & Partial<Pick<DeviceRow, DeviceOptional>>;
 
 export interface DeviceAssignmentRow {
   id: string;
@@ -148,8 +167,9 @@ export interface DeviceAssignmentRow {
   assigned_from: Date;
   assigned_to: Date | null;
   assigned_by: string | null;
+  unassigned_by: string | null;
 }
-export type DeviceAssignmentInsert = Omit<DeviceAssignmentRow, "id">;
+export type DeviceAssignmentInsert = Omit<DeviceAssignmentRow, "id" | "unassigned_by"> & { unassigned_by?: string | null };
 
 export interface BeatRow {
   device_id: string;
@@ -373,5 +393,78 @@ declare module "knex/types/tables" {
       Partial<Pick<MailOutboxRow, "status" | "attempts" | "next_attempt_at" | "last_error" | "sent_at">>
     >;
     mail_received: Knex.CompositeTableType<MailReceivedRow, Omit<MailReceivedRow, "id" | "received_at">, never>;
+  }
+}
+
+// ---- device registry (migrations/20261202000400_device_registry.ts) ----
+
+export const DEVICE_HEALTH_MINUTES = "device_health_minutes";
+export const DEVICE_MAINTENANCE = "device_maintenance";
+export const DEVICE_ATTACHMENTS = "device_attachments";
+export const DEVICE_IMPORT_BATCHES = "device_import_batches";
+
+export interface DeviceHealthMinuteRow {
+  device_id: string;
+  /** Start of the UTC minute. */
+  minute: Date;
+  beats: number;
+  gaps: number;
+  missing_seqs: string; // bigint
+  duplicates: number;
+  malformed: number;
+  reconnects: number;
+  clock_offset_ms: number | null;
+  connected: boolean;
+}
+
+export const MAINTENANCE_KINDS = ["preventive", "repair", "firmware_update"] as const;
+export type MaintenanceKind = (typeof MAINTENANCE_KINDS)[number];
+export interface DeviceMaintenanceRow {
+  id: string;
+  device_id: string;
+  kind: MaintenanceKind;
+  /** A calendar date (PostgreSQL date, read as "YYYY-MM-DD" text). */
+  performed_on: string;
+  performed_by_name: string;
+  note: string;
+  firmware_before: string | null;
+  firmware_after: string | null;
+  next_due_on: string | null;
+  recorded_by: string | null;
+  recorded_at: Date;
+}
+
+export const ATTACHMENT_TYPES = ["application/pdf", "image/png", "image/jpeg"] as const;
+export type AttachmentType = (typeof ATTACHMENT_TYPES)[number];
+export interface DeviceAttachmentRow {
+  id: string;
+  maintenance_id: string;
+  file_name: string;
+  content_type: AttachmentType;
+  size_bytes: number;
+  sha256: string;
+  content: Buffer;
+  uploaded_by: string | null;
+  uploaded_at: Date;
+}
+
+export interface DeviceImportBatchRow {
+  id: string;
+  unit_id: string;
+  file_name: string;
+  sha256: string;
+  rows: unknown;
+  status: "previewed" | "imported" | "failed";
+  created_by: string | null;
+  created_at: Date;
+  confirmed_at: Date | null;
+}
+
+declare module "knex/types/tables" {
+  interface Tables {
+    device_health_minutes: Knex.CompositeTableType<DeviceHealthMinuteRow, Partial<DeviceHealthMinuteRow> & Pick<DeviceHealthMinuteRow, "device_id" | "minute">, Partial<DeviceHealthMinuteRow>>;
+    device_maintenance: Knex.CompositeTableType<DeviceMaintenanceRow, Omit<DeviceMaintenanceRow, "id" | "recorded_at" | "note" | "firmware_before" | "firmware_after" | "next_due_on"> & Partial<Pick<DeviceMaintenanceRow, "note" | "firmware_before" | "firmware_after" | "next_due_on">>, never>;
+    device_attachments: Knex.CompositeTableType<DeviceAttachmentRow, Omit<DeviceAttachmentRow, "id" | "uploaded_at">, never>;
+    device_import_batches: Knex.CompositeTableType<DeviceImportBatchRow, Pick<DeviceImportBatchRow, "unit_id" | "file_name" | "sha256" | "rows" | "created_by">, Partial<Pick<DeviceImportBatchRow, "status" | "confirmed_at" | "rows">>>;
   }
 }

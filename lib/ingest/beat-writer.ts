@@ -1,7 +1,9 @@
 // Writes accepted stream records to PostgreSQL in batches, idempotently on (device, seq): a beat stored twice is
 // impossible because the same record always carries the same device time (the partitioned table's key), and the
 // readers skip seqs they have already accepted. The stream status of each device (last seq, counters, clock
-// offset) is written in the same transaction, so "last stored seq" is always true after a crash.
+// offset) is written in the same transaction, so "last stored seq" is always true after a crash. So is the device's
+// stream-health sample of the current UTC minute (device_health_minutes): the counters' growth since the status row
+// last written, added to the minute's row, so the counts of several flushes in one minute add up.
 import type { Knex } from "knex";
 import { logger } from "@/lib/log";
 import type { BeatRecord, StreamRecord } from "@/lib/streaming/protocol";
@@ -48,6 +50,7 @@ export const WRITER_DEFAULTS: Readonly<WriterOptions> = {
 };
 
 const DAY_MS = 86_400_000;
+const MINUTE_MS = 60_000;
 
 export class BeatWriter {
   private buffer: PendingRecord[] = [];
@@ -66,6 +69,8 @@ export class BeatWriter {
     private readonly options: WriterOptions = WRITER_DEFAULTS,
     /** Called after each successful flush with the highest stored seq per device. */
     private readonly onStored: (stored: Map<string, number>) => void = () => undefined,
+    /** The server clock; the health sample of a flush counts in the UTC minute of this time. */
+    private readonly now: () => number = Date.now,
   ) {}
 
   get buffered(): number {
@@ -121,6 +126,7 @@ export class BeatWriter {
     const batch = taken.filter((p): p is PendingBeat => p.record.kind === "beat");
     const devices = [...this.dirtyStatus];
     const stored = new Map<string, number>();
+    const beatsStored = new Map<string, number>();
     await this.db.transaction(async (trx) => {
       if (batch.length) {
         const days = new Set(batch.map((b) => Math.floor(b.record.tDevice / DAY_MS)));
@@ -138,11 +144,15 @@ export class BeatWriter {
           }
           this.knownPartitions.add(day);
         }
-        await trx.raw(
-          `INSERT INTO beats (device_id, seq, beat_at, device_time, received_at, rr_ms, beat_type, quality, lead_off)
-           SELECT * FROM unnest(?::uuid[], ?::bigint[], ?::timestamptz[], ?::timestamptz[], ?::timestamptz[],
-                                ?::float8[], ?::bpchar[], ?::real[], ?::bool[])
-           ON CONFLICT DO NOTHING`,
+        // RETURNING: a replayed beat already stored (ON CONFLICT) does not count as stored again in the minute.
+        const { rows } = await trx.raw<{ rows: { device_id: string; n: number }[] }>(
+          `WITH ins AS (
+             INSERT INTO beats (device_id, seq, beat_at, device_time, received_at, rr_ms, beat_type, quality, lead_off)
+             SELECT * FROM unnest(?::uuid[], ?::bigint[], ?::timestamptz[], ?::timestamptz[], ?::timestamptz[],
+                                  ?::float8[], ?::bpchar[], ?::real[], ?::bool[])
+             ON CONFLICT DO NOTHING
+             RETURNING device_id)
+           SELECT device_id, count(*)::int AS n FROM ins GROUP BY device_id`,
           [
             batch.map((b) => b.deviceId),
             batch.map((b) => b.record.seq),
@@ -155,30 +165,14 @@ export class BeatWriter {
             batch.map((b) => b.record.leadOff),
           ],
         );
+        for (const r of rows) beatsStored.set(r.device_id, r.n);
       }
       for (const p of taken) stored.set(p.deviceId, Math.max(stored.get(p.deviceId) ?? this.storedSeq.get(p.deviceId) ?? 0, p.record.seq));
-      for (const deviceId of devices) {
+      const status = devices.flatMap((deviceId) => {
         const c = this.counters.get(deviceId);
-        if (!c) continue;
-        const row = {
-          device_id: deviceId,
-          connected: c.connected,
-          last_seq: String(stored.get(deviceId) ?? this.storedSeq.get(deviceId) ?? c.lastSeq),
-          last_seen_at: c.lastSeenAt === null ? null : new Date(c.lastSeenAt),
-          last_beat_at: c.lastBeatAt === null ? null : new Date(c.lastBeatAt),
-          gaps: c.gaps,
-          missing_seqs: String(c.missingSeqs),
-          duplicates: c.duplicates,
-          malformed: c.malformed,
-          malformed_by_kind: c.malformedByKind,
-          reconnects: c.reconnects,
-          clock_offset_ms: c.clockOffsetMs,
-          lead_off: c.leadOff,
-          last_error: c.lastError,
-          updated_at: new Date(),
-        };
-        await trx("device_stream_status").insert(row).onConflict("device_id").merge();
-      }
+        return c ? [{ deviceId, c, lastSeq: stored.get(deviceId) ?? this.storedSeq.get(deviceId) ?? c.lastSeq }] : [];
+      });
+      if (status.length) await writeStatusAndMinute(trx, status, beatsStored, this.now());
     });
     this.buffer.splice(0, taken.length);
     for (const [d, s] of stored) this.storedSeq.set(d, s);
@@ -188,4 +182,78 @@ export class BeatWriter {
     if (stored.size) this.onStored(stored);
     if (this.buffer.length >= this.options.batchSize) void Promise.resolve().then(() => this.flush());
   }
+}
+
+/**
+ * One statement for every device of a flush: upserts each device's stream status, and adds to the device's sample of
+ * the current UTC minute the beats stored now and the growth of each counter since the status row as it was before
+ * this statement (all parts of one statement see the same snapshot, so `before` is the previous flush's row). A
+ * counter that went down (counters reset) adds nothing rather than a negative count. The minute keeps the last clock
+ * offset measured in it and the connection state at its last flush.
+ */
+async function writeStatusAndMinute(
+  trx: Knex.Transaction,
+  status: { deviceId: string; c: DeviceCounters; lastSeq: number }[],
+  beatsStored: ReadonlyMap<string, number>,
+  now: number,
+): Promise<void> {
+  const col = <T,>(f: (s: (typeof status)[number]) => T): Knex.Value => status.map(f) as Knex.Value;
+  const ms = (t: number | null) => (t === null ? null : new Date(t).toISOString());
+  await trx.raw(
+    `WITH s AS (
+       SELECT * FROM unnest(?::uuid[], ?::bool[], ?::bigint[], ?::timestamptz[], ?::timestamptz[], ?::int[], ?::bigint[],
+                            ?::int[], ?::int[], ?::text[], ?::int[], ?::float8[], ?::bool[], ?::text[], ?::int[])
+         AS s(device_id, connected, last_seq, last_seen_at, last_beat_at, gaps, missing_seqs,
+              duplicates, malformed, malformed_by_kind, reconnects, clock_offset_ms, lead_off, last_error, beats)
+     ),
+     before AS (
+       SELECT st.device_id, st.gaps, st.missing_seqs, st.duplicates, st.malformed, st.reconnects
+         FROM device_stream_status st JOIN s USING (device_id)
+     ),
+     status AS (
+       INSERT INTO device_stream_status (device_id, connected, last_seq, last_seen_at, last_beat_at, gaps, missing_seqs,
+                                         duplicates, malformed, malformed_by_kind, reconnects, clock_offset_ms, lead_off,
+                                         last_error, updated_at)
+       SELECT device_id, connected, last_seq, last_seen_at, last_beat_at, gaps, missing_seqs, duplicates, malformed,
+              malformed_by_kind::jsonb, reconnects, clock_offset_ms, lead_off, last_error, ?::timestamptz
+         FROM s
+       ON CONFLICT (device_id) DO UPDATE SET
+         connected = EXCLUDED.connected, last_seq = EXCLUDED.last_seq, last_seen_at = EXCLUDED.last_seen_at,
+         last_beat_at = EXCLUDED.last_beat_at, gaps = EXCLUDED.gaps, missing_seqs = EXCLUDED.missing_seqs,
+         duplicates = EXCLUDED.duplicates, malformed = EXCLUDED.malformed, malformed_by_kind = EXCLUDED.malformed_by_kind,
+         reconnects = EXCLUDED.reconnects, clock_offset_ms = EXCLUDED.clock_offset_ms, lead_off = EXCLUDED.lead_off,
+         last_error = EXCLUDED.last_error, updated_at = EXCLUDED.updated_at
+     )
+     INSERT INTO device_health_minutes AS m (device_id, minute, beats, gaps, missing_seqs, duplicates, malformed, reconnects,
+                                             clock_offset_ms, connected)
+     SELECT s.device_id, ?::timestamptz, s.beats,
+            GREATEST(s.gaps - COALESCE(b.gaps, 0), 0), GREATEST(s.missing_seqs - COALESCE(b.missing_seqs, 0), 0),
+            GREATEST(s.duplicates - COALESCE(b.duplicates, 0), 0), GREATEST(s.malformed - COALESCE(b.malformed, 0), 0),
+            GREATEST(s.reconnects - COALESCE(b.reconnects, 0), 0), s.clock_offset_ms, s.connected
+       FROM s LEFT JOIN before b USING (device_id)
+     ON CONFLICT (device_id, minute) DO UPDATE SET
+       beats = m.beats + EXCLUDED.beats, gaps = m.gaps + EXCLUDED.gaps, missing_seqs = m.missing_seqs + EXCLUDED.missing_seqs,
+       duplicates = m.duplicates + EXCLUDED.duplicates, malformed = m.malformed + EXCLUDED.malformed,
+       reconnects = m.reconnects + EXCLUDED.reconnects,
+       clock_offset_ms = COALESCE(EXCLUDED.clock_offset_ms, m.clock_offset_ms), connected = EXCLUDED.connected`,
+    [
+      col((s) => s.deviceId),
+      col((s) => s.c.connected),
+      col((s) => String(s.lastSeq)),
+      col((s) => ms(s.c.lastSeenAt)),
+      col((s) => ms(s.c.lastBeatAt)),
+      col((s) => s.c.gaps),
+      col((s) => String(s.c.missingSeqs)),
+      col((s) => s.c.duplicates),
+      col((s) => s.c.malformed),
+      col((s) => JSON.stringify(s.c.malformedByKind)),
+      col((s) => s.c.reconnects),
+      col((s) => s.c.clockOffsetMs),
+      col((s) => s.c.leadOff),
+      col((s) => s.c.lastError),
+      col((s) => beatsStored.get(s.deviceId) ?? 0),
+      new Date(now).toISOString(),
+      new Date(now - (now % MINUTE_MS)).toISOString(),
+    ],
+  );
 }

@@ -1,6 +1,8 @@
 // Reads one device's Server-Sent Events stream (eventsource 4.1.1), validates every event, and hands accepted
 // records to the writer in order. It resumes from the last record it accepted — not from the last `id:` the
 // library saw, which a hostile or broken event could set — by sending its own Last-Event-ID on every connection.
+// Token rotation: it presents the current token; when the device refuses it (401) and the token before the rotation
+// is still in its grace period, it presents that one, so a device not yet given the new token keeps streaming.
 import { EventSource } from "eventsource";
 import { logger } from "@/lib/log";
 import { parseStreamEvent, type MalformedKind } from "@/lib/streaming/protocol";
@@ -10,9 +12,15 @@ export interface ReaderDevice {
   id: string;
   serial: string;
   streamUrl: string;
+  /** The current stream token. */
   token: string;
+  /** The token before the last rotation, while its grace lasts (validUntil: epoch ms). */
+  previous?: { token: string; validUntil: number } | null;
   unitId: string;
 }
+
+/** What changed when the registry's view of a device is applied to its running reader. */
+export type ReaderUpdate = "unchanged" | "moved" | "credentials" | "restarted";
 
 export const READER_DEFAULTS = {
   /** Reconnect backoff after a failed connection: doubles from min to max. */
@@ -30,11 +38,17 @@ export class StreamReader {
   private paused = false;
   private opens = 0;
   private loggedKinds = new Set<MalformedKind | "unknown_event">();
+  /** The token the open (or opening) connection presents. */
+  private presented: string | null = null;
+  /** Closes a connection made with the previous token when its grace ends. */
+  private graceTimer: NodeJS.Timeout | null = null;
+  /** The current token for which "device still has the old token" was logged (once per rotation). */
+  private fallbackLoggedFor: string | null = null;
   /** Highest seq accepted (handed to the writer); resumes from here. */
   lastAccepted: number;
 
   constructor(
-    readonly device: ReaderDevice,
+    public device: ReaderDevice,
     private readonly counters: DeviceCounters,
     private readonly writer: BeatWriter,
     private readonly now: () => number = Date.now,
@@ -69,29 +83,91 @@ export class StreamReader {
     this.connect();
   }
 
+  /**
+   * Applies the registry's current view of the device. A move to another bed changes nothing on the wire; new
+   * tokens keep an open connection whose token is still accepted (a rotation must not drop the stream) and otherwise
+   * reconnect at once, without waiting out a backoff; a new stream address reconnects.
+   */
+  update(next: ReaderDevice): ReaderUpdate {
+    const before = this.device;
+    this.device = next;
+    if (next.streamUrl !== before.streamUrl) {
+      this.reconnectNow();
+      return "restarted";
+    }
+    const sameCredentials = next.token === before.token && next.previous?.token === before.previous?.token && next.previous?.validUntil === before.previous?.validUntil;
+    if (sameCredentials) return next.unitId === before.unitId ? "unchanged" : "moved";
+    const stillAccepted = this.presented !== null && (this.presented === next.token || this.presented === this.validPrevious());
+    if (stillAccepted && this.counters.connected) this.armGraceTimer();
+    else this.reconnectNow();
+    return "credentials";
+  }
+
+  /** The previous token while its grace lasts, else null. */
+  private validPrevious(): string | null {
+    const p = this.device.previous;
+    return p && p.validUntil > this.now() ? p.token : null;
+  }
+
+  private reconnectNow(): void {
+    if (this.stopped) return;
+    this.close();
+    this.backoffMs = READER_DEFAULTS.backoffMinMs;
+    if (this.counters.connected) {
+      this.counters.connected = false;
+      this.writer.touch(this.device.id);
+      this.onConnection(false);
+    }
+    this.connect();
+  }
+
+  /** While the open connection presents the previous token, ends it when the grace does, to go on with the current. */
+  private armGraceTimer(): void {
+    if (this.graceTimer) clearTimeout(this.graceTimer);
+    this.graceTimer = null;
+    const p = this.device.previous;
+    if (!p || this.presented !== p.token || this.presented === this.device.token) return;
+    this.graceTimer = setTimeout(() => {
+      this.graceTimer = null;
+      logger.info({ device: this.device.serial }, "grace period of the previous stream token ended; presenting only the current token");
+      this.reconnectNow();
+    }, Math.max(0, p.validUntil - this.now()));
+  }
+
   private close(): void {
     if (this.retryTimer) clearTimeout(this.retryTimer);
     this.retryTimer = null;
+    if (this.graceTimer) clearTimeout(this.graceTimer);
+    this.graceTimer = null;
     this.es?.close();
     this.es = null;
+    this.presented = null;
   }
 
-  private connect(): void {
+  private connect(which: "current" | "previous" = "current"): void {
     if (this.stopped || this.paused) return;
-    const { token } = this.device;
+    const first = which === "current" ? this.device.token : this.validPrevious();
+    if (first === null) return this.scheduleReconnect();
+    let requests = 0;
     const es = new EventSource(this.device.streamUrl, {
-      fetch: (input, init) =>
-        fetch(input, {
+      fetch: (input, init) => {
+        // The library's own reconnects (after a cut) present the current token again, so a device that has since
+        // been given the new token is read with it; a refusal then comes back here as a 401 (below).
+        const token = requests++ === 0 ? first : this.device.token;
+        this.presented = token;
+        return fetch(input, {
           ...init,
           headers: {
             ...(init?.headers as Record<string, string>),
             Authorization: `Bearer ${token}`,
             "Last-Event-ID": String(this.lastAccepted),
           },
-        }),
+        });
+      },
     });
     this.es = es;
     es.addEventListener("open", () => {
+      if (this.es !== es) return;
       this.opens += 1;
       if (this.opens > 1) this.counters.reconnects += 1;
       this.counters.connected = true;
@@ -99,19 +175,31 @@ export class StreamReader {
       this.backoffMs = READER_DEFAULTS.backoffMinMs;
       this.writer.touch(this.device.id);
       this.onConnection(true);
+      this.armGraceTimer();
     });
     const onEvent = (e: MessageEvent<string>) => this.handle(e.data, e.lastEventId);
     es.addEventListener("beat", onEvent);
     es.addEventListener("status", onEvent);
     es.addEventListener("message", () => this.malformed("unknown_event", "event without a known type"));
     es.addEventListener("error", (err) => {
+      if (this.es !== es) return;
       const wasConnected = this.counters.connected;
       this.counters.connected = false;
       this.counters.lastError = (err as { message?: string }).message ?? "stream error";
       this.writer.touch(this.device.id);
       if (wasConnected) this.onConnection(false);
       // The library retries transient failures itself; a closed source (e.g. 401, 404) is ours to retry.
-      if (es.readyState === EventSource.CLOSED) this.scheduleReconnect();
+      if (es.readyState !== EventSource.CLOSED) return;
+      const refusedCurrent = (err as { code?: number }).code === 401 && this.presented === this.device.token;
+      if (refusedCurrent && this.validPrevious() !== null) {
+        if (this.fallbackLoggedFor !== this.device.token) {
+          this.fallbackLoggedFor = this.device.token;
+          logger.info({ device: this.device.serial }, "device refused the current stream token: it has not yet been given the new token; presenting the previous one during its grace period");
+        }
+        this.close();
+        return this.connect("previous");
+      }
+      this.scheduleReconnect();
     });
   }
 
@@ -119,6 +207,7 @@ export class StreamReader {
     if (this.stopped || this.paused || this.retryTimer) return;
     this.es?.close();
     this.es = null;
+    this.presented = null;
     const delay = this.backoffMs;
     this.backoffMs = Math.min(this.backoffMs * 2, READER_DEFAULTS.backoffMaxMs);
     this.retryTimer = setTimeout(() => {

@@ -12,14 +12,13 @@ import type { IndexWindowRow } from "@/lib/db/tables";
 import type { ShortTermKey } from "@/lib/engine/indices";
 import { ALGORITHM_VERSION } from "@/lib/engine/version";
 import { unresolvedFlagsOf } from "./flags-view";
+import { LIVE_WITHIN_MS } from "@/lib/devices/stream-state";
 import { latestNight, type NightTimes } from "./night";
 
 /** The indices the overview shows, in column order (all from the 5-min windows; none research-only). */
 export const OVERVIEW_INDEX_KEYS = ["hr", "rmssd", "dfa_alpha1", "sampen"] as const satisfies readonly ShortTermKey[];
 export type OverviewIndexKey = (typeof OVERVIEW_INDEX_KEYS)[number];
 
-/** A stream is live while its last beat is at most this old (DOMAIN §5.7 calls data stale after 60 s, cp). */
-export const LIVE_WITHIN_MS = 60_000;
 /** Most points in a night's sparkline; the bucket is the smallest multiple of SPARKLINE_TILE_S that keeps to it. */
 export const SPARKLINE_MAX_POINTS = 120;
 /** The sparkline's finest step: one 5-min window (windows start every whole minute, so some start on this grid). */

@@ -43,6 +43,9 @@ export async function loadSimulatedDevices(db: Knex, secret?: string): Promise<L
     .join("beds as b", "b.id", "a.bed_id")
     .join("units as u", "u.id", "b.unit_id")
     .whereNull("a.assigned_to")
+    // Only devices Corvane reads: in service and holding a current token (none after a revoke or before the first issue).
+    .where("d.status", "active")
+    .whereNotNull("d.stream_token_enc")
     .select(
       "d.serial",
       "d.stream_token_enc",

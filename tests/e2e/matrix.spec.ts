@@ -12,7 +12,16 @@ type Caller = Role | "signed_out";
 const CALLERS: Caller[] = ["signed_out", ...ROLES];
 
 // Real ids from the e2e database for the parameters in paths.
-interface Ids { units: Record<string, string>; userId: string; grants: Record<Role, Grant[]>; stays: { stayId: string; unitId: string }[] }
+interface Ids {
+  units: Record<string, string>;
+  userId: string;
+  grants: Record<Role, Grant[]>;
+  stays: { stayId: string; unitId: string }[];
+  /** An audit entry every audit reader may open (not tied to a unit). */
+  auditSeq: string;
+  /** One device per unit, with one maintenance attachment of it (seeds/03_device_maintenance.ts). */
+  devices: { deviceId: string; unitId: string; attachmentId: string }[];
+}
 let ids: Ids;
 
 test.beforeAll(async () => {
@@ -30,7 +39,15 @@ test.beforeAll(async () => {
       .distinctOn("b.unit_id")
       .orderBy([{ column: "b.unit_id" }, { column: "s.admitted_at" }])
       .select<{ stayId: string; unitId: string }[]>("s.id as stayId", "b.unit_id as unitId");
-    ids = { units, userId, grants, stays };
+    const devices = await db("device_attachments as f")
+      .join("device_maintenance as m", "m.id", "f.maintenance_id")
+      .join("devices as d", "d.id", "m.device_id")
+      .distinctOn("d.unit_id")
+      .orderBy([{ column: "d.unit_id" }, { column: "d.serial" }])
+      .select<{ deviceId: string; unitId: string; attachmentId: string }[]>("d.id as deviceId", "d.unit_id as unitId", "f.id as attachmentId");
+    expect(devices.length, "a device with an attachment in every unit").toBe(Object.keys(units).length);
+    const auditSeq = String((await db("audit_events").whereNull("unit_id").orderBy("seq").first("seq"))!.seq);
+    ids = { units, userId, grants, stays, devices, auditSeq };
   } finally {
     await db.destroy();
   }
@@ -48,13 +65,21 @@ test("every server action on disk is in the access table and in the build", () =
   for (const name of found) expect(built.has(name), `${name} in the build`).toBe(true);
 });
 
-/** The concrete URLs to try for a route: unit- and stay-scoped routes once per demo unit. */
+/** The concrete URLs to try for a route: unit-, stay- and device-scoped routes once per demo unit (a device route
+ *  with the device and attachment of the unit in its address). */
 function concretePaths(route: string): { path: string; unitId?: string }[] {
+  if (route.includes("[deviceId]")) {
+    return ids.devices.map((d) => ({
+      path: route.replace("[unitId]", d.unitId).replace("[deviceId]", d.deviceId).replace("[attachmentId]", d.attachmentId),
+      unitId: d.unitId,
+    }));
+  }
   const fill = (unitId?: string, stayId?: string) =>
     route
       .replace("[unitId]", unitId ?? "")
       .replace("[stayId]", stayId ?? "")
       .replace("[userId]", ids.userId)
+      .replace("[seq]", ids.auditSeq)
       .replace("[...nextauth]", "session");
   if (route.includes("[unitId]")) return Object.values(ids.units).map((u) => ({ path: fill(u), unitId: u }));
   if (route.includes("[stayId]")) return ids.stays.map((s) => ({ path: fill(undefined, s.stayId), unitId: s.unitId }));

@@ -139,7 +139,7 @@ test.describe("clinician morning review", () => {
   test("a biomedical engineer and a clinician of another unit are refused", async ({ page }) => {
     await page.goto("/signin");
     await signIn(page, "biomed");
-    await expect(page).toHaveURL(/\/census$/);
+    await expect(page).toHaveURL(/\/stream-health$/);
     for (const path of [`/units/${ids.unit4W}/overview`, `/stays/${ids.stay4W02}/night`, `/stays/${ids.stay4W02}/window`, `/stays/${ids.stay4W02}/handoff`]) {
       await page.goto(path);
       await expect(page, path).toHaveURL(/\/forbidden$/);

@@ -16,7 +16,7 @@ test.describe("sign-in", () => {
   const landings = [
     { role: "clinician", url: /\/units\/[0-9a-f-]+\/overview$/, heading: "4 West Step-Down" },
     { role: "charge_nurse", url: /\/units\/[0-9a-f-]+\/queue$/, heading: "4 West Step-Down" },
-    { role: "biomed", url: /\/units\/[0-9a-f-]+\/census$/, heading: /Step-Down|Neonatal/ },
+    { role: "biomed", url: /\/units\/[0-9a-f-]+\/stream-health$/, heading: /Step-Down|Neonatal/ },
     { role: "admin", url: /\/people$/, heading: "People" },
     { role: "quality", url: /\/audit$/, heading: "Audit trail" },
   ] as const;

@@ -34,6 +34,7 @@ async function register(device: FakeDevice, serial: string): Promise<string> {
   const [row] = await db("devices")
     .insert({
       serial,
+      unit_id: unit!.id,
       model: "test double",
       firmware: "0",
       timestamp_resolution_ms: 1,

@@ -31,12 +31,15 @@ describe("migrations", () => {
     const first = await schemaSnapshot(db);
     expect(first.tables.map((t: { table_name: string }) => t.table_name)).toEqual(
       [
-        "audit_events", "baselines", "beats", "beats_default", "beds", "clinical_annotations", "computation_params",
-        "compute_runs", "device_assignments", "device_stream_status", "devices", "flag_events", "flags", "handoff_notes",
+        "audit_checkpoints", "audit_events", "audit_exports", "baselines", "beats", "beats_default", "beds", "clinical_annotations", "computation_params",
+        "compute_runs", "device_assignments", "device_attachments", "device_health_minutes", "device_import_batches",
+        "device_maintenance", "device_stream_status", "devices", "flag_events", "flags", "handoff_notes",
         "index_windows", "mail_outbox", "mail_received", "patients", "rule_sets", "stays", "units", "user_unit_roles", "users",
       ],
     );
-    expect(first.triggers.map((t: { tgname: string }) => t.tgname)).toEqual(["audit_events_no_truncate", "audit_events_no_update_delete"]);
+    expect(first.triggers.map((t: { tgname: string }) => t.tgname)).toEqual([
+      "audit_checkpoints_no_truncate", "audit_checkpoints_no_update_delete", "audit_events_no_truncate", "audit_events_no_update_delete",
+    ]);
 
     await db.migrate.rollback({}, true);
     const empty = await schemaSnapshot(db);

@@ -11,7 +11,8 @@ import { simulateHealthySleep, type SimulatedBeats } from "@/lib/engine/simulate
 import { median } from "@/lib/engine/stats";
 import { ALGORITHM_VERSION } from "@/lib/engine/version";
 import { saveRuleSetVersion } from "@/lib/flags/rule-sets";
-import { LIVE_WITHIN_MS, OVERVIEW_INDEX_KEYS, wardOverview, type WardOverviewDTO } from "@/lib/review/overview";
+import { LIVE_WITHIN_MS } from "@/lib/devices/stream-state";
+import { OVERVIEW_INDEX_KEYS, wardOverview, type WardOverviewDTO } from "@/lib/review/overview";
 import { seed } from "@/seeds/01_demo";
 import { DEFAULT_RULE_SET } from "@/seeds/02_rule_sets";
 import { scratchDatabase } from "@/tests/support/db";
@@ -61,8 +62,9 @@ async function addBed(unit: string, label: string, sortOrder: number, active = t
 }
 
 async function addDevice(serial: string, bedId: string, from: Date) {
+  const unitOfBed = (await db("beds").where({ id: bedId }).first("unit_id"))!.unit_id;
   const [device] = await db("devices")
-    .insert({ serial, model: "test monitor", firmware: "0", timestamp_resolution_ms: 1, stream_url: "http://127.0.0.1:9/unused", stream_token_hash: "unused", stream_token_enc: "unused" })
+    .insert({ serial, unit_id: unitOfBed, model: "test monitor", firmware: "0", timestamp_resolution_ms: 1, stream_url: "http://127.0.0.1:9/unused", stream_token_hash: "unused", stream_token_enc: "unused" })
     .returning("id");
   await db("device_assignments").insert({ device_id: device!.id, bed_id: bedId, assigned_from: from, assigned_to: null, assigned_by: null });
   return device!.id as string;

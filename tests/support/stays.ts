@@ -13,7 +13,7 @@ export async function makeTestStay(db: Knex, unitId: string, admittedAt: Date, d
   const [patient] = await db("patients").insert({ record_number: `TEST-${beds}`, display_name: "Test, Synthetic", birth_date: null }).returning("id");
   const [stay] = await db("stays").insert({ patient_id: patient!.id, bed_id: bed!.id, admitted_at: admittedAt, discharged_at: dischargedAt }).returning("id");
   const [device] = await db("devices")
-    .insert({ serial: `TEST-${beds}`, model: "test monitor", firmware: "0", timestamp_resolution_ms: 1, stream_url: "http://127.0.0.1:9/unused", stream_token_hash: "unused", stream_token_enc: "unused" })
+    .insert({ serial: `TEST-${beds}`, unit_id: unitId, model: "test monitor", firmware: "0", timestamp_resolution_ms: 1, stream_url: "http://127.0.0.1:9/unused", stream_token_hash: "unused", stream_token_enc: "unused" })
     .returning("id");
   await db("device_assignments").insert({ device_id: device!.id, bed_id: bed!.id, assigned_from: new Date(admittedAt.getTime() - HOUR), assigned_to: null, assigned_by: null });
   return { stayId: stay!.id as string, deviceId: device!.id as string };

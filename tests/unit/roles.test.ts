@@ -19,6 +19,10 @@ describe("permission map", () => {
     expect(can([{ unitId: U1, role: "quality" }], "census.view", U1)).toBe(false);
     expect(can([{ unitId: U1, role: "quality" }], "audit.view")).toBe(true);
     expect(can([{ unitId: U1, role: "biomed" }], "people.manage")).toBe(false);
+    expect(can([{ unitId: U1, role: "biomed" }], "trends.view", U1)).toBe(false);
+    expect(can([{ unitId: U1, role: "biomed" }], "devices.manage", U1)).toBe(true);
+    expect(can([{ unitId: U1, role: "biomed" }], "devices.manage", U2)).toBe(false);
+    for (const role of ["clinician", "charge_nurse", "quality", "admin"] as const) expect(can([{ unitId: U1, role }], "devices.view")).toBe(false);
   });
 
   it("names the role behind an allowed action and the units it covers", () => {
@@ -41,18 +45,18 @@ describe("landing and navigation", () => {
     expect(landingPath([{ unitId: U1, role: "clinician" }])).toBe(`/units/${U1}/overview`);
     expect(landingPath([{ unitId: U1, role: "charge_nurse" }])).toBe(`/units/${U1}/queue`);
     expect(landingPath([{ unitId: U2, role: "biomed" }, { unitId: U1, role: "clinician" }])).toBe(`/units/${U1}/overview`);
-    expect(landingPath([{ unitId: U2, role: "biomed" }])).toBe(`/units/${U2}/census`);
+    expect(landingPath([{ unitId: U2, role: "biomed" }])).toBe(`/units/${U2}/stream-health`);
     expect(landingPath([{ unitId: U1, role: "admin" }])).toBe("/people");
     expect(landingPath([{ unitId: U1, role: "quality" }])).toBe("/audit");
     expect(landingPath([])).toBeNull();
   });
 
   it("offers only screens the roles may use", () => {
-    expect(navItems([{ unitId: U1, role: "quality" }]).map((i) => i.label)).toEqual(["Audit trail"]);
+    expect(navItems([{ unitId: U1, role: "quality" }]).map((i) => i.label)).toEqual(["Audit trail", "Quality metrics"]);
     expect(navItems([{ unitId: U1, role: "clinician" }]).map((i) => i.label)).toEqual(["Ward overview", "Handoff summary", "Review queue", "Census"]);
-    expect(navItems([{ unitId: U1, role: "biomed" }]).map((i) => i.label)).toEqual(["Census"]);
-    expect(navItems([{ unitId: U1, role: "admin" }]).map((i) => i.label)).toEqual(["Census", "People", "Rule sets"]);
-    expect(navItems([{ unitId: U1, role: "admin" }], { demoMode: true }).map((i) => i.label)).toEqual(["Census", "People", "Rule sets", "Mailbox"]);
+    expect(navItems([{ unitId: U1, role: "biomed" }]).map((i) => i.label)).toEqual(["Census", "Stream health", "Device registry", "Maintenance"]);
+    expect(navItems([{ unitId: U1, role: "admin" }]).map((i) => i.label)).toEqual(["Census", "People", "Rule sets", "Audit trail"]);
+    expect(navItems([{ unitId: U1, role: "admin" }], { demoMode: true }).map((i) => i.label)).toEqual(["Census", "People", "Rule sets", "Mailbox", "Audit trail"]);
     expect(navItems([])).toEqual([]);
   });
 });

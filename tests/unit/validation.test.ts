@@ -43,8 +43,8 @@ describe("people forms", () => {
 
 describe("chain-check range", () => {
   it("accepts an empty or ordered range and rejects a reversed one", () => {
-    expect(verifyChainSchema.parse({ fromSeq: "", toSeq: "" })).toEqual({ fromSeq: undefined, toSeq: undefined });
-    expect(verifyChainSchema.parse({ fromSeq: "2", toSeq: "9" })).toEqual({ fromSeq: "2", toSeq: "9" });
+    expect(verifyChainSchema.parse({ fromSeq: "", toSeq: "" })).toMatchObject({ by: "seq", fromSeq: undefined, toSeq: undefined });
+    expect(verifyChainSchema.parse({ fromSeq: "2", toSeq: "9" })).toMatchObject({ by: "seq", fromSeq: "2", toSeq: "9" });
     expect(verifyChainSchema.safeParse({ fromSeq: "9", toSeq: "2" }).success).toBe(false);
     expect(verifyChainSchema.safeParse({ fromSeq: "0" }).success).toBe(false);
   });

@@ -1,0 +1,32 @@
+import Link from "next/link";
+import { notFound } from "next/navigation";
+import { guardPage } from "@/lib/auth/guard";
+import { getUnit } from "@/lib/units/repository";
+import { unitIdSchema } from "@/lib/units/unit-id.validation";
+import { DeviceImport } from "@/components/devices/import/DeviceImport";
+import { ImportFileFormat } from "@/components/devices/import/ImportFileFormat";
+
+export const metadata = { title: "Import devices" };
+
+export default async function ImportDevicesPage({ params }: { params: Promise<{ unitId: string }> }) {
+  const unitId = unitIdSchema.safeParse((await params).unitId);
+  if (!unitId.success) notFound();
+  // The registry layout admits devices.view; importing needs devices.manage in this unit.
+  await guardPage("devices.manage", unitId.data);
+  const unit = await getUnit(unitId.data);
+  if (!unit) notFound();
+  return (
+    <div className="space-y-5">
+      <div>
+        <p className="text-sm text-muted">
+          <Link href={`/units/${unit.id}/devices`}>Device registry</Link>
+        </p>
+        <h1>
+          Import devices from CSV <span className="font-normal text-muted">· {unit.name}</span>
+        </h1>
+      </div>
+      <ImportFileFormat />
+      <DeviceImport unitId={unit.id} />
+    </div>
+  );
+}

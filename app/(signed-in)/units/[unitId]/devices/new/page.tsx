@@ -1,0 +1,34 @@
+// Registration of a device in the unit (biomedical engineers with "devices.manage" there).
+import Link from "next/link";
+import { notFound } from "next/navigation";
+import { guardPage } from "@/lib/auth/guard";
+import { db } from "@/lib/db";
+import { unitIdSchema } from "@/lib/units/unit-id.validation";
+import { DEFAULT_SIMULATOR_PORT } from "@/seeds/demo-data";
+import { RegisterDeviceForm } from "@/components/devices/registry/RegisterDeviceForm";
+
+export const metadata = { title: "Register a device" };
+
+export default async function RegisterDevicePage({ params }: { params: Promise<{ unitId: string }> }) {
+  const unitId = unitIdSchema.safeParse((await params).unitId);
+  if (!unitId.success) notFound();
+  await guardPage("devices.manage", unitId.data);
+  const unit = await db("units").where({ id: unitId.data }).first("id", "name");
+  if (!unit) notFound();
+  // The port the demo simulator listens on by default (scripts/simulator.ts), for the suggested stream address.
+  const port = Number(process.env.CORVANE_SIM_PORT) || DEFAULT_SIMULATOR_PORT;
+  return (
+    <div className="max-w-4xl space-y-5">
+      <div>
+        <p className="text-sm text-muted">
+          <Link href={`/units/${unit.id}/devices`}>Device registry</Link> · {unit.name}
+        </p>
+        <h1>Register a device</h1>
+        <p className="mt-1 text-muted">
+          The device joins this unit&apos;s registry without a token. On its page you then issue its stream token and assign it to a bed.
+        </p>
+      </div>
+      <RegisterDeviceForm unitId={unit.id} simulatorPort={port} />
+    </div>
+  );
+}

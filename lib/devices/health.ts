@@ -1,0 +1,376 @@
+// Stream health for biomedical engineers: per device, the stream's state, last beat, beats received per minute, gaps,
+// duplicates, malformed events, reconnects, clock offset and drift, and the last 24 h minute by minute. Stream data
+// only — no clinical value, no patient. A fixed number of queries whatever the number of devices: the unit table reads
+// its devices, their 24-h minute samples and their beats in three statements (and the unit in a fourth), in parallel.
+import "server-only";
+import type { Knex } from "knex";
+import { db as defaultDb } from "@/lib/db/knex";
+import type { DeviceStatus } from "@/lib/db/tables";
+import { streamStateOf, type StreamState } from "./stream-state";
+
+const MINUTE_MS = 60_000;
+const HOUR_MS = 3_600_000;
+/** Minutes in the health window: the 24 h ending with the minute that holds `now`. */
+export const HEALTH_MINUTES = 24 * 60;
+/** Beats received per minute are averaged over this stretch before `now`. */
+export const RATE_WINDOW_MS = 5 * MINUTE_MS;
+/** Clock drift needs minute offsets spanning at least this long: over a shorter stretch the offset estimate's own
+ *  jitter (network delay varies by milliseconds) would pass for drift (our choice). */
+export const DRIFT_MIN_SPAN_MS = 2 * HOUR_MS;
+/** A live stream with at least this many gaps, malformed events and reconnects together in 24 h ranks as troubled:
+ *  one or two reconnects a day are routine (a cable moved, network maintenance); five is worth a look (our choice). */
+export const MANY_EVENTS_24H = 5;
+
+/** A device's longest gap is recomputed at most this often: it reads every beat of the day (about 0.2 s per device
+ *  at neonatal rates on the demo data), while the table refreshes every 15 s. Every other figure is read fresh. */
+export const LONGEST_GAP_REUSE_MS = 60_000;
+
+/** Longest gaps as last computed, per database and device. */
+const longestGapCache = new WeakMap<Knex, Map<string, { at: number; longestS: number | null }>>();
+
+/**
+ * Trouble tiers, most trouble first: offline (nothing for longer than OFFLINE_AFTER_MS) > stale > live with many
+ * gaps, malformed events or reconnects > live and clean > not streaming (Corvane does not read the device — in
+ * maintenance, without a bed or without a token — so its stream cannot be in trouble).
+ */
+export const TROUBLE_TIERS = { offline: 4, stale: 3, troubled: 2, clean: 1, not_streaming: 0 } as const;
+export type TroubleTier = keyof typeof TROUBLE_TIERS;
+const TIER_SCALE = 1e10;
+
+export interface DriftDTO {
+  /** Least-squares slope of the minute clock offsets over the window, ms per hour; null with a reason. */
+  msPerHour: number | null;
+  /** Value of the fitted line at the window's start (ms), to draw it; null with msPerHour. */
+  interceptMs: number | null;
+  reason: string | null;
+  /** Minutes with an offset sample, and the time between the first and last of them. */
+  samples: number;
+  spanMinutes: number;
+}
+
+export interface StreamHealthRowDTO {
+  deviceId: string;
+  serial: string;
+  model: string;
+  status: DeviceStatus;
+  bedLabel: string | null;
+  state: StreamState;
+  /** Why Corvane does not read the device, when state is not_streaming. */
+  notStreamingBecause: string | null;
+  connected: boolean;
+  lastBeatAt: string | null;
+  /** Beats stored with a beat time in the RATE_WINDOW_MS before now, per minute (a stream rate, not a heart rate). */
+  beatsPerMinute: number;
+  /** 24 h: runs of sequence numbers the device never delivered, and the records in them (device_health_minutes). */
+  gaps: number;
+  missingRecords: number;
+  /** 24 h: the longest time between two consecutive stored beats (from the beats' beat_at), s; null under 2 beats.
+   *  Computed at most every LONGEST_GAP_REUSE_MS per device. */
+  longestGapS: number | null;
+  duplicates: number;
+  malformed: number;
+  /** Malformed events by kind since the device's counters began (device_stream_status.malformed_by_kind). */
+  malformedByKind: Record<string, number>;
+  reconnects: number;
+  /** Device clock minus server clock, ms, as last measured. */
+  clockOffsetMs: number | null;
+  drift: DriftDTO;
+  trouble: { tier: TroubleTier; /** Larger = more trouble; sorts the table "most trouble first". */ rank: number };
+}
+
+export interface UnitStreamHealthDTO {
+  unit: { id: string; name: string; timeZone: string };
+  asOf: string;
+  /** Start of the 24-h window (a whole UTC minute). */
+  from: string;
+  counts: Record<StreamState, number>;
+  /** MANY_EVENTS_24H, for the page's explanation of the trouble order. */
+  manyEvents: number;
+  rows: StreamHealthRowDTO[];
+}
+
+export interface DeviceHealthSeriesDTO {
+  deviceId: string;
+  timeZone: string;
+  asOf: string;
+  from: string;
+  latest: StreamHealthRowDTO;
+  /** Minute starts, epoch seconds, HEALTH_MINUTES of them; every other column is aligned with it. */
+  t: number[];
+  /** Beats stored with a beat time in the minute (the beats table, so beats backfilled later count where they belong). */
+  beats: number[];
+  /** From the writer's minute samples (device_health_minutes): 0 where no sample. */
+  gaps: number[];
+  duplicates: number[];
+  malformed: number[];
+  reconnects: number[];
+  /** Null where the minute has no sample or no offset. */
+  clockOffsetMs: (number | null)[];
+}
+
+/** Which devices a read covers: a unit's (not decommissioned) or one device (whatever its status). */
+type Scope = { unitId: string } | { deviceId: string };
+
+const scopeSql = (s: Scope) => ("unitId" in s ? { sql: "d.unit_id = :scopeId AND d.status <> 'decommissioned'", id: s.unitId } : { sql: "d.id = :scopeId", id: s.deviceId });
+
+type DeviceRowSql = {
+  id: string;
+  serial: string;
+  model: string;
+  status: DeviceStatus;
+  has_token: boolean;
+  bed_label: string | null;
+  assigned: boolean;
+  connected: boolean | null;
+  last_beat_at: Date | null;
+  clock_offset_ms: number | null;
+  malformed_by_kind: Record<string, number> | null;
+};
+
+/** The devices with their open bed assignment at `now` and their stream status row. */
+function devicesQuery(knex: Knex, scope: Scope, now: Date) {
+  const s = scopeSql(scope);
+  return knex.raw<{ rows: DeviceRowSql[] }>(
+    `SELECT d.id, d.serial, d.model, d.status, d.stream_token_hash IS NOT NULL AS has_token,
+            a.bed_label, a.device_id IS NOT NULL AS assigned,
+            st.connected, st.last_beat_at, st.clock_offset_ms, st.malformed_by_kind
+       FROM devices d
+       LEFT JOIN LATERAL (
+         SELECT a.device_id, b.label AS bed_label FROM device_assignments a JOIN beds b ON b.id = a.bed_id
+          WHERE a.device_id = d.id AND a.assigned_from <= :now AND (a.assigned_to IS NULL OR a.assigned_to > :now)
+          ORDER BY a.assigned_from DESC LIMIT 1
+       ) a ON true
+       LEFT JOIN device_stream_status st ON st.device_id = d.id
+      WHERE ${s.sql}
+      ORDER BY d.serial`,
+    { scopeId: s.id, now },
+  );
+}
+
+type MinuteTotalsSql = {
+  device_id: string;
+  gaps: number;
+  missing: number;
+  duplicates: number;
+  malformed: number;
+  reconnects: number;
+  slope: number | null;
+  intercept: number | null;
+  samples: number;
+  span_s: number | null;
+};
+
+/**
+ * Per device, the window's minute samples summed, and the least-squares line through the minute clock offsets
+ * (PostgreSQL's regr_slope / regr_intercept, x = hours since the window's start, so the slope is in ms per hour).
+ */
+function minuteTotalsQuery(knex: Knex, scope: Scope, from: Date, now: Date) {
+  const s = scopeSql(scope);
+  return knex.raw<{ rows: MinuteTotalsSql[] }>(
+    `SELECT m.device_id,
+            sum(m.gaps)::float8 AS gaps, sum(m.missing_seqs)::float8 AS missing, sum(m.duplicates)::float8 AS duplicates,
+            sum(m.malformed)::float8 AS malformed, sum(m.reconnects)::float8 AS reconnects,
+            regr_slope(m.clock_offset_ms, extract(epoch FROM m.minute - :from) / 3600) AS slope,
+            regr_intercept(m.clock_offset_ms, extract(epoch FROM m.minute - :from) / 3600) AS intercept,
+            count(m.clock_offset_ms)::int AS samples,
+            extract(epoch FROM max(m.minute) FILTER (WHERE m.clock_offset_ms IS NOT NULL)
+                             - min(m.minute) FILTER (WHERE m.clock_offset_ms IS NOT NULL))::float8 AS span_s
+       FROM device_health_minutes m JOIN devices d ON d.id = m.device_id
+      WHERE ${s.sql} AND m.minute >= :from AND m.minute <= :now
+      GROUP BY m.device_id`,
+    { scopeId: s.id, from, now },
+  );
+}
+
+/**
+ * Per device, beats with a beat time in the rate window, and — except for the devices in `reuse` — the longest
+ * interval between consecutive stored beats in the health window (beat_at differences, read through the
+ * (device_id, beat_at) index; `computed` says whether it was).
+ */
+function beatFiguresQuery(knex: Knex, scope: Scope, from: Date, now: Date, reuse: string[]) {
+  const s = scopeSql(scope);
+  return knex.raw<{ rows: { device_id: string; recent: number; longest_s: number | null; computed: boolean }[] }>(
+    `SELECT d.id AS device_id, r.recent, g.longest_s, NOT (d.id = ANY(:reuse::uuid[])) AS computed
+       FROM devices d
+       CROSS JOIN LATERAL (
+         SELECT count(*)::int AS recent FROM beats b WHERE b.device_id = d.id AND b.beat_at > :rateFrom AND b.beat_at <= :now
+       ) r
+       CROSS JOIN LATERAL (
+         SELECT max(extract(epoch FROM x.beat_at - x.prev))::float8 AS longest_s
+           FROM (SELECT b.beat_at, lag(b.beat_at) OVER (ORDER BY b.beat_at) AS prev
+                   FROM beats b
+                  WHERE NOT (d.id = ANY(:reuse::uuid[])) AND b.device_id = d.id AND b.beat_at >= :from AND b.beat_at <= :now) x
+       ) g
+      WHERE ${s.sql}`,
+    { scopeId: s.id, from, now, rateFrom: new Date(now.getTime() - RATE_WINDOW_MS), reuse },
+  );
+}
+
+/** Longest gaps computed within LONGEST_GAP_REUSE_MS before `now` (never ones computed for a later `now`). */
+function reusableLongestGaps(knex: Knex, now: Date): Map<string, number | null> {
+  const out = new Map<string, number | null>();
+  for (const [id, c] of longestGapCache.get(knex) ?? []) {
+    const age = now.getTime() - c.at;
+    if (age >= 0 && age < LONGEST_GAP_REUSE_MS) out.set(id, c.longestS);
+  }
+  return out;
+}
+
+function rememberLongestGaps(knex: Knex, now: Date, rows: { device_id: string; longest_s: number | null; computed: boolean }[]) {
+  let cache = longestGapCache.get(knex);
+  if (!cache) longestGapCache.set(knex, (cache = new Map()));
+  for (const r of rows) if (r.computed) cache.set(r.device_id, { at: now.getTime(), longestS: r.longest_s });
+}
+
+/** Start of the health window: HEALTH_MINUTES whole minutes ending with the one that holds `now`. */
+export function healthWindowFrom(now: Date): Date {
+  const t = now.getTime();
+  return new Date(t - (((t % MINUTE_MS) + MINUTE_MS) % MINUTE_MS) - (HEALTH_MINUTES - 1) * MINUTE_MS);
+}
+
+function driftOf(t: MinuteTotalsSql | undefined): DriftDTO {
+  const samples = t?.samples ?? 0;
+  const spanMinutes = Math.round((t?.span_s ?? 0) / 60);
+  if (!t || samples === 0) return { msPerHour: null, interceptMs: null, reason: "No clock offset measured in the last 24 h.", samples: 0, spanMinutes: 0 };
+  if ((t.span_s ?? 0) * 1000 < DRIFT_MIN_SPAN_MS || samples < 2 || t.slope === null) {
+    return {
+      msPerHour: null,
+      interceptMs: null,
+      reason: `Clock offsets span only ${spanMinutes} min of the last 24 h; drift needs at least ${DRIFT_MIN_SPAN_MS / HOUR_MS} h.`,
+      samples,
+      spanMinutes,
+    };
+  }
+  return { msPerHour: t.slope, interceptMs: t.intercept, reason: null, samples, spanMinutes };
+}
+
+function notStreamingReason(d: DeviceRowSql): string | null {
+  if (d.status !== "active") return d.status === "maintenance" ? "in maintenance" : "decommissioned";
+  if (!d.assigned) return "not assigned to a bed";
+  if (!d.has_token) return "no stream token";
+  return null;
+}
+
+function troubleOf(state: StreamState, lastBeatAt: Date | null, events: number, now: Date): StreamHealthRowDTO["trouble"] {
+  const tier: TroubleTier =
+    state === "not_streaming" ? "not_streaming"
+    : state === "offline" ? "offline"
+    : state === "stale" ? "stale"
+    : events >= MANY_EVENTS_24H ? "troubled"
+    : "clean";
+  // Within offline and stale, the longer silence first (never a beat: longest); within live, more events first.
+  const silenceS = lastBeatAt ? Math.floor((now.getTime() - lastBeatAt.getTime()) / 1000) : TIER_SCALE - 1;
+  const within = tier === "offline" || tier === "stale" ? silenceS : tier === "not_streaming" ? 0 : events;
+  return { tier, rank: TROUBLE_TIERS[tier] * TIER_SCALE + Math.max(0, Math.min(within, TIER_SCALE - 1)) };
+}
+
+async function healthRows(knex: Knex, scope: Scope, now: Date, from: Date): Promise<StreamHealthRowDTO[]> {
+  const reuse = reusableLongestGaps(knex, now);
+  const [devices, totals, beats] = await Promise.all([
+    devicesQuery(knex, scope, now),
+    minuteTotalsQuery(knex, scope, from, now),
+    beatFiguresQuery(knex, scope, from, now, [...reuse.keys()]),
+  ]);
+  rememberLongestGaps(knex, now, beats.rows);
+  const totalsOf = new Map(totals.rows.map((t) => [t.device_id, t]));
+  const beatsOf = new Map(beats.rows.map((b) => [b.device_id, { recent: b.recent, longestS: b.computed ? b.longest_s : (reuse.get(b.device_id) ?? null) }]));
+  return devices.rows.map((d) => {
+    const t = totalsOf.get(d.id);
+    const b = beatsOf.get(d.id);
+    const because = notStreamingReason(d);
+    const state = streamStateOf({ streamed: because === null, connected: d.connected ?? false, lastBeatAt: d.last_beat_at }, now);
+    const gaps = t?.gaps ?? 0;
+    const malformed = t?.malformed ?? 0;
+    const reconnects = t?.reconnects ?? 0;
+    return {
+      deviceId: d.id,
+      serial: d.serial,
+      model: d.model,
+      status: d.status,
+      bedLabel: d.bed_label,
+      state,
+      notStreamingBecause: because,
+      connected: d.connected ?? false,
+      lastBeatAt: d.last_beat_at?.toISOString() ?? null,
+      beatsPerMinute: (b?.recent ?? 0) / (RATE_WINDOW_MS / MINUTE_MS),
+      gaps,
+      missingRecords: t?.missing ?? 0,
+      longestGapS: b?.longestS ?? null,
+      duplicates: t?.duplicates ?? 0,
+      malformed,
+      malformedByKind: d.malformed_by_kind ?? {},
+      reconnects,
+      clockOffsetMs: d.clock_offset_ms,
+      drift: driftOf(t),
+      trouble: troubleOf(state, d.last_beat_at, gaps + malformed + reconnects, now),
+    };
+  });
+}
+
+/**
+ * Stream health of every device of a unit (home unit; decommissioned devices left out) as of `now`, in serial order;
+ * null when there is no such unit. Four queries in one parallel round, whatever the number of devices.
+ */
+export async function unitStreamHealth(unitId: string, now: Date = new Date(), knex: Knex = defaultDb): Promise<UnitStreamHealthDTO | null> {
+  const from = healthWindowFrom(now);
+  const [unit, rows] = await Promise.all([
+    knex("units").where({ id: unitId }).first("id", "name", "time_zone"),
+    healthRows(knex, { unitId }, now, from),
+  ]);
+  if (!unit) return null;
+  const counts: Record<StreamState, number> = { live: 0, stale: 0, offline: 0, not_streaming: 0 };
+  for (const r of rows) counts[r.state] += 1;
+  return { unit: { id: unit.id, name: unit.name, timeZone: unit.time_zone }, asOf: now.toISOString(), from: from.toISOString(), counts, manyEvents: MANY_EVENTS_24H, rows };
+}
+
+/**
+ * One device's last 24 h minute by minute, with its latest figures (as in the unit table); null when there is no
+ * such device. The caller has checked that the device belongs to the unit in the address (lib/devices/device-scope.ts).
+ */
+export async function deviceHealthSeries(deviceId: string, now: Date = new Date(), knex: Knex = defaultDb): Promise<DeviceHealthSeriesDTO | null> {
+  const from = healthWindowFrom(now);
+  const [rows, unit, perMinuteBeats, minutes] = await Promise.all([
+    healthRows(knex, { deviceId }, now, from),
+    knex("devices as d").join("units as u", "u.id", "d.unit_id").where("d.id", deviceId).first("u.time_zone"),
+    knex.raw<{ rows: { k: number; n: number }[] }>(
+      `SELECT floor(extract(epoch FROM beat_at - :from) / 60)::int AS k, count(*)::int AS n
+         FROM beats WHERE device_id = :deviceId AND beat_at >= :from AND beat_at <= :now GROUP BY 1`,
+      { deviceId, from, now },
+    ),
+    knex("device_health_minutes")
+      .where({ device_id: deviceId })
+      .andWhere("minute", ">=", from)
+      .andWhere("minute", "<=", now)
+      .select("minute", "gaps", "duplicates", "malformed", "reconnects", "clock_offset_ms"),
+  ]);
+  const latest = rows[0];
+  if (!latest || !unit) return null;
+  const fromS = from.getTime() / 1000;
+  const t = Array.from({ length: HEALTH_MINUTES }, (_, k) => fromS + k * 60);
+  const zeros = () => new Array<number>(HEALTH_MINUTES).fill(0);
+  const out: DeviceHealthSeriesDTO = {
+    deviceId,
+    timeZone: unit.time_zone,
+    asOf: now.toISOString(),
+    from: from.toISOString(),
+    latest,
+    t,
+    beats: zeros(),
+    gaps: zeros(),
+    duplicates: zeros(),
+    malformed: zeros(),
+    reconnects: zeros(),
+    clockOffsetMs: new Array<number | null>(HEALTH_MINUTES).fill(null),
+  };
+  for (const r of perMinuteBeats.rows) if (r.k >= 0 && r.k < HEALTH_MINUTES) out.beats[r.k] = r.n;
+  for (const m of minutes) {
+    const k = Math.round((m.minute.getTime() - from.getTime()) / MINUTE_MS);
+    if (k < 0 || k >= HEALTH_MINUTES) continue;
+    out.gaps[k] = m.gaps;
+    out.duplicates[k] = m.duplicates;
+    out.malformed[k] = m.malformed;
+    out.reconnects[k] = m.reconnects;
+    out.clockOffsetMs[k] = m.clock_offset_ms;
+  }
+  return out;
+}
