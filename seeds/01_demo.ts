@@ -1,13 +1,12 @@
 // Seeds the invented demo idempotently: a second run inserts nothing and changes nothing.
 import type { Knex } from "knex";
-import { randomUUID } from "node:crypto";
-import { recordAudit } from "@/lib/audit/record";
 import { hashPassword } from "@/lib/auth/password";
 import { encryptStreamToken, generateStreamToken, hashStreamToken } from "@/lib/devices/stream-token";
 import {
   BEDS_PER_UNIT, bedLabel, DEFAULT_SIMULATOR_PORT, DEMO_ASSIGNED_HOURS_AGO, DEMO_DEVICE_FIRMWARE, DEMO_DEVICE_MANUFACTURER, DEMO_DEVICE_MODEL,
   DEMO_PASSWORD, DEMO_PEOPLE, DEMO_STAYS, DEMO_TIME_ZONE, DEMO_UNITS, demoDeviceSerial, simulatorStreamUrl,
 } from "./demo-data";
+import { auditSeed } from "./seed-audit";
 
 const HOUR = 3_600_000;
 
@@ -115,17 +114,7 @@ export async function seed(knex: Knex): Promise<{ inserted: Record<string, numbe
     }
 
     if (Object.values(inserted).some((n) => n > 0)) {
-      await recordAudit(
-        {
-          actor: { userId: null, email: null, role: "system" },
-          action: "demo.seed",
-          outcome: "success",
-          detail: { inserted },
-          requestId: randomUUID(),
-          clientAddress: null,
-        },
-        trx,
-      );
+      await auditSeed(trx, "demo.seed", { inserted });
     }
   });
   return { inserted };

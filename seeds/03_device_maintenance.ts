@@ -3,12 +3,11 @@
 // Dates are relative to the day of seeding, so the demo always shows some devices overdue and some due soon, and every
 // unit has one entry with a small PDF attachment (the role × route matrix downloads one per unit).
 import type { Knex } from "knex";
-import { randomUUID } from "node:crypto";
 import { formatInTimeZone } from "date-fns-tz";
-import { recordAudit } from "@/lib/audit/record";
-import { checkAttachments } from "@/lib/devices/attachments";
+import { checkAttachments, insertAttachment } from "@/lib/devices/attachments";
 import type { MaintenanceKind } from "@/lib/db/tables";
 import { bedLabel, DEMO_DEVICE_MODEL, DEMO_TIME_ZONE, DEMO_UNITS, demoDeviceSerial, demoPerson } from "./demo-data";
+import { auditSeed } from "./seed-audit";
 
 const DAY = 86_400_000;
 
@@ -132,32 +131,13 @@ export async function seedDeviceMaintenance(knex: Knex, now: Date = new Date()):
           // Through the same checks as an upload, so the demo file is one Corvane itself would accept.
           const checked = await checkAttachments([new File([new Uint8Array(pdf)], `Service report (fictional) ${serial}.pdf`)]);
           if (!checked.ok) throw new Error(`demo service report refused: ${checked.messages.join(" ")}`);
-          const a = checked.attachments[0]!;
-          await trx("device_attachments").insert({
-            maintenance_id: entry!.id,
-            file_name: a.fileName,
-            content_type: a.contentType,
-            size_bytes: a.sizeBytes,
-            sha256: a.sha256,
-            content: a.content,
-            uploaded_by: recorder?.id ?? null,
-          });
+          await insertAttachment(trx, entry!.id, checked.attachments[0]!, recorder?.id ?? null);
           inserted.attachments += 1;
         }
       }
     }
     if (inserted.entries > 0) {
-      await recordAudit(
-        {
-          actor: { userId: null, email: null, role: "system" },
-          action: "demo.seed.maintenance",
-          outcome: "success",
-          detail: { inserted },
-          requestId: randomUUID(),
-          clientAddress: null,
-        },
-        trx,
-      );
+      await auditSeed(trx, "demo.seed.maintenance", { inserted });
     }
   });
   return { inserted };

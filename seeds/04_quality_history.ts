@@ -7,10 +7,9 @@
 // Only nights before the previous local noon get flags: the live evaluator's per-night cap and its "open flag" logic
 // never see them (lib/flags/evaluate-stay.ts), and every one is resolved, so none enters the Review queue or a reminder.
 import type { Knex } from "knex";
-import { randomUUID } from "node:crypto";
-import { recordAudit } from "@/lib/audit/record";
 import { addDays, lastCompleteDays, localMidnight } from "@/lib/quality/stats";
 import { demoPerson, DEMO_TIME_ZONE } from "./demo-data";
+import { auditSeed } from "./seed-audit";
 
 const MIN = 60_000;
 /** Local minutes after midnight at which a history flag may be raised (all before 07:00, the night shift's end). */
@@ -85,10 +84,7 @@ export async function seedQualityHistory(knex: Knex, now: Date = new Date()): Pr
       }
     }
     if (n > 0) {
-      await recordAudit(
-        { actor: { userId: null, email: null, role: "system" }, action: "demo.seed_quality_history", outcome: "success", detail: { flags: n, mails, from, to, unitId: unit.id }, requestId: randomUUID(), clientAddress: null },
-        trx,
-      );
+      await auditSeed(trx, "demo.seed_quality_history", { flags: n, mails, from, to, unitId: unit.id });
     }
     return { inserted: n };
   });

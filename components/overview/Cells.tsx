@@ -1,4 +1,5 @@
 // The Ward overview's cells. Every state is written in words and marked with a shape; colour only follows them.
+import { StreamIcon } from "@/components/StreamIcon";
 import type { OverviewBedDTO, OverviewStreamDTO, OverviewValueDTO, OverviewWindowDTO } from "@/lib/review/overview";
 import { describeChange, formatClock, formatNumber, withUnit, type IndexColumn } from "./format";
 
@@ -67,31 +68,6 @@ export function QualityCell({ latest, timeZone, asOf }: { latest: OverviewWindow
         </ul>
       )}
     </td>
-  );
-}
-
-function StreamIcon({ state }: { state: OverviewStreamDTO["state"] }) {
-  return (
-    <svg aria-hidden="true" viewBox="0 0 20 20" className="h-5 w-5 shrink-0">
-      {state === "live" && (
-        <>
-          <circle cx="10" cy="10" r="3.5" fill="currentColor" />
-          <path d="M5 5a7 7 0 0 0 0 10M15 5a7 7 0 0 1 0 10" fill="none" stroke="currentColor" strokeWidth="1.8" strokeLinecap="round" />
-        </>
-      )}
-      {state === "stale" && (
-        <>
-          <circle cx="10" cy="10" r="8" fill="none" stroke="currentColor" strokeWidth="1.8" />
-          <path d="M10 5.5V10l3 2" fill="none" stroke="currentColor" strokeWidth="1.8" strokeLinecap="round" />
-        </>
-      )}
-      {state === "no_device" && (
-        <>
-          <rect x="3" y="6" width="14" height="9" rx="2" fill="none" stroke="currentColor" strokeWidth="1.8" />
-          <path d="M3 17L17 3" stroke="currentColor" strokeWidth="1.8" strokeLinecap="round" />
-        </>
-      )}
-    </svg>
   );
 }
 

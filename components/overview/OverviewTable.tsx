@@ -3,65 +3,21 @@
 // live event of the unit (new windows, flags, stream status), coalesced so a busy unit does not refetch per event.
 // Each fetch is an audited read. Sorting is local; the unit's bed order is the default and breaks every tie.
 import Link from "next/link";
-import { useCallback, useEffect, useRef, useState } from "react";
-import useSWR from "swr";
-import { useLiveEvents } from "@/components/live/useLiveEvents";
+import { RefreshFailedNotice, useLiveRefresh, type LiveRefreshOptions } from "@/components/live/useLiveRefresh";
+import { SortableHeader as SharedHeader, SortButton, useSort, type SortState } from "@/components/table/SortableHeader";
 import type { OverviewBedDTO, WardOverviewDTO } from "@/lib/review/overview";
 import { FlagsCell, QualityCell, StreamCell, ValueCell } from "./Cells";
-import { FIRST_DIRECTION, INDEX_COLUMNS, INDEX_KEYS, formatClock, sortBeds, type SortDirection, type SortKey } from "./format";
+import { FIRST_DIRECTION, INDEX_COLUMNS, INDEX_KEYS, formatClock, sortBeds, type SortKey } from "./format";
 import { Sparkline } from "./Sparkline";
 
-const REFRESH_MS = 60_000;
-/** After a live event, wait this long for more before refetching, and refetch at most this often. */
-const EVENT_SETTLE_MS = 2_000;
-const EVENT_MIN_GAP_MS = 15_000;
+const REFRESH: LiveRefreshOptions = { what: "overview", refreshMs: 60_000, settleMs: 2_000, minGapMs: 15_000 };
 
-async function fetchOverview(url: string): Promise<WardOverviewDTO> {
-  const res = await fetch(url, { cache: "no-store" });
-  if (!res.ok) throw new Error(`overview request failed (${res.status})`);
-  return (await res.json()) as WardOverviewDTO;
-}
-
-function SortIcon({ direction }: { direction: SortDirection | null }) {
+/** The overview's headers grow with the rest of the table on wide ward screens. */
+function SortableHeader({ keys, sort, children }: { keys: SortKey[]; sort: SortState<SortKey>; children: React.ReactNode }) {
   return (
-    <svg aria-hidden="true" viewBox="0 0 12 16" className="h-4 w-3 shrink-0">
-      <path d="M6 1.5L10 6H2z" fill={direction === "ascending" ? "currentColor" : "none"} stroke="currentColor" strokeWidth="1.2" />
-      <path d="M6 14.5L10 10H2z" fill={direction === "descending" ? "currentColor" : "none"} stroke="currentColor" strokeWidth="1.2" />
-    </svg>
-  );
-}
-
-interface SortState {
-  key: SortKey;
-  direction: SortDirection;
-}
-
-function SortButton({ sortKey, sort, onSort, children, className = "" }: {
-  sortKey: SortKey;
-  sort: SortState;
-  onSort: (k: SortKey) => void;
-  children: React.ReactNode;
-  className?: string;
-}) {
-  const active = sort.key === sortKey;
-  return (
-    <button
-      type="button"
-      onClick={() => onSort(sortKey)}
-      className={`inline-flex min-h-6 min-w-6 cursor-pointer items-center gap-1 rounded px-1 py-0.5 text-left font-bold hover:text-ink ${active ? "text-ink underline decoration-accent decoration-2 underline-offset-4" : ""} ${className}`}
-    >
+    <SharedHeader keys={keys} sort={sort} className="2xl:text-base">
       {children}
-      <SortIcon direction={active ? sort.direction : null} />
-    </button>
-  );
-}
-
-/** A header whose aria-sort follows the column's active sort key(s). */
-function SortableHeader({ keys, sort, children, className = "" }: { keys: SortKey[]; sort: SortState; children: React.ReactNode; className?: string }) {
-  return (
-    <th scope="col" aria-sort={keys.includes(sort.key) ? sort.direction : "none"} className={`align-bottom 2xl:text-base ${className}`}>
-      {children}
-    </th>
+    </SharedHeader>
   );
 }
 
@@ -113,49 +69,10 @@ function BedRow({ bed, overview }: { bed: OverviewBedDTO; overview: WardOverview
 
 export function OverviewTable({ initial }: { initial: WardOverviewDTO }) {
   const url = `/api/units/${initial.unit.id}/overview`;
-  const [failedAt, setFailedAt] = useState<Date | null>(null);
-  /** When the table last asked the server (the server render counts: the page has just read it). */
-  const lastFetch = useRef(0);
-  useEffect(() => {
-    lastFetch.current = Date.now();
-  }, []);
-  const { data, mutate } = useSWR(url, fetchOverview, {
-    fallbackData: initial,
-    refreshInterval: REFRESH_MS,
-    revalidateOnFocus: false,
-    revalidateOnMount: false,
-    keepPreviousData: true,
-    onSuccess: () => {
-      lastFetch.current = Date.now();
-      setFailedAt(null);
-    },
-    onError: () => {
-      lastFetch.current = Date.now();
-      setFailedAt(new Date());
-    },
-  });
-  const overview = data ?? initial;
+  const { data: overview, failedAt } = useLiveRefresh(initial.unit.id, url, initial, REFRESH);
   const tz = overview.unit.timeZone;
 
-  const pending = useRef<ReturnType<typeof setTimeout> | undefined>(undefined);
-  useEffect(() => () => clearTimeout(pending.current), []);
-  const onLive = useCallback(() => {
-    if (pending.current) return;
-    const wait = Math.max(EVENT_SETTLE_MS, EVENT_MIN_GAP_MS - (Date.now() - lastFetch.current));
-    pending.current = setTimeout(() => {
-      pending.current = undefined;
-      void mutate();
-    }, wait);
-  }, [mutate]);
-  useLiveEvents(initial.unit.id, onLive);
-
-  const [sort, setSort] = useState<SortState>({ key: "bed", direction: "ascending" });
-  const onSort = (key: SortKey) =>
-    setSort((s) =>
-      s.key === key
-        ? { key, direction: s.direction === "ascending" ? "descending" : "ascending" }
-        : { key, direction: FIRST_DIRECTION[key] ?? "ascending" },
-    );
+  const { sort, onSort } = useSort<SortKey>({ key: "bed", direction: "ascending" }, (k) => FIRST_DIRECTION[k] ?? "ascending");
   const beds = sortBeds(overview.beds, sort.key, sort.direction);
 
   return (
@@ -172,18 +89,7 @@ export function OverviewTable({ initial }: { initial: WardOverviewDTO }) {
             Last refreshed <time dateTime={overview.asOf}>{formatClock(overview.asOf, tz)}</time> · refreshes every
             minute and on new data
           </p>
-          <div role="status">
-          {failedAt && (
-            <p className="mt-1 flex items-center gap-2 rounded-md border border-problem bg-problem-surface px-2 py-1 text-ink">
-              <svg aria-hidden="true" viewBox="0 0 20 20" className="h-4 w-4 shrink-0 text-problem">
-                <circle cx="10" cy="10" r="8.5" fill="none" stroke="currentColor" strokeWidth="1.8" />
-                <path d="M10 5v6m0 3.5v.5" fill="none" stroke="currentColor" strokeWidth="2" strokeLinecap="round" />
-              </svg>
-              Refresh failed at {formatClock(failedAt.toISOString(), tz)}; the table still shows the data of{" "}
-              {formatClock(overview.asOf, tz)}.
-            </p>
-          )}
-          </div>
+          <RefreshFailedNotice failedAt={failedAt && formatClock(failedAt.toISOString(), tz)} dataOf={formatClock(overview.asOf, tz)} />
         </div>
       </div>
       <div className="mt-2 overflow-x-auto">

@@ -2,6 +2,7 @@
 // signed text (shape and words, never colour alone), times in the unit's zone, and the sort order of each column.
 import { formatInTimeZone } from "date-fns-tz";
 import type { OverviewBedDTO, OverviewIndexKey } from "@/lib/review/overview";
+import type { SortDirection } from "@/components/table/SortableHeader";
 
 export interface IndexColumn {
   label: string;
@@ -47,7 +48,6 @@ export function formatClock(iso: string, timeZone: string, asOf?: string): strin
 }
 
 export type SortKey = "bed" | "patient" | OverviewIndexKey | `${OverviewIndexKey}:change` | "quality" | "stream" | "flags";
-export type SortDirection = "ascending" | "descending";
 
 /** The direction a column sorts in on its first click: most flags first, everything else smallest first. */
 export const FIRST_DIRECTION: Partial<Record<SortKey, SortDirection>> = { flags: "descending" };

@@ -53,6 +53,22 @@ function refreshPages(unitId: string) {
   revalidatePath(`/units/${unitId}/devices`, "layout");
 }
 
+/**
+ * A write to one device of the unit: `work` runs in one transaction with the device row-locked (a device of another
+ * unit is not found, and nothing is written); the registry pages are refreshed after a success.
+ */
+async function withLockedDevice<R = undefined>(
+  input: { unitId: string; deviceId: string },
+  work: (trx: Knex.Transaction, device: LockedDevice) => Promise<ActionResult<R>>,
+): Promise<ActionResult<R>> {
+  const result = await inTransaction<R>(async (trx) => {
+    const device = await lockDevice(trx, input.unitId, input.deviceId);
+    return device ? work(trx, device) : NOT_FOUND;
+  });
+  if (result.ok) refreshPages(input.unitId);
+  return result;
+}
+
 const target = (deviceId: string) => ({ type: "device", id: deviceId });
 
 async function audited(actor: Actor, trx: Knex.Transaction, unitId: string, deviceId: string, action: string, detail: Record<string, unknown>) {
@@ -93,9 +109,7 @@ export const updateDevice = guardedAction(
   "updateDevice",
   updateDeviceSchema,
   async (input, actor) => {
-    const result = await inTransaction(async (trx) => {
-      const device = await lockDevice(trx, input.unitId, input.deviceId);
-      if (!device) return NOT_FOUND;
+    return withLockedDevice(input, async (trx, device) => {
       if (device.status === "decommissioned") return DECOMMISSIONED;
       if (Number(device.version) !== input.version) {
         return { ok: false, code: "conflict", message: "Someone changed this device while you were editing. Reload the page to edit what is saved now; nothing was saved." };
@@ -129,8 +143,6 @@ export const updateDevice = guardedAction(
         : "";
       return { ok: true, message: `Saved the changes to ${device.serial}.${statusNote}` };
     });
-    if (result.ok) refreshPages(input.unitId);
-    return result;
   },
   unitScope,
 );
@@ -139,9 +151,7 @@ export const decommissionDevice = guardedAction(
   "decommissionDevice",
   decommissionDeviceSchema,
   async (input, actor) => {
-    const result = await inTransaction(async (trx) => {
-      const device = await lockDevice(trx, input.unitId, input.deviceId);
-      if (!device) return NOT_FOUND;
+    return withLockedDevice(input, async (trx, device) => {
       if (device.status === "decommissioned") return { ok: false, code: "conflict", message: "This device is already decommissioned." };
       const open = await trx("device_assignments as a").join("beds as b", "b.id", "a.bed_id").where("a.device_id", device.id).whereNull("a.assigned_to").first("b.label");
       if (open) {
@@ -167,8 +177,6 @@ export const decommissionDevice = guardedAction(
       });
       return { ok: true, message: `${device.serial} is decommissioned. Its tokens are revoked; its record and history are kept.` };
     });
-    if (result.ok) refreshPages(input.unitId);
-    return result;
   },
   unitScope,
 );
@@ -187,9 +195,7 @@ export const issueStreamToken = guardedAction(
   "issueStreamToken",
   deviceTokenSchema,
   async (input, actor) => {
-    const result = await inTransaction<NewTokenData>(async (trx) => {
-      const device = await lockDevice(trx, input.unitId, input.deviceId);
-      if (!device) return NOT_FOUND;
+    return withLockedDevice<NewTokenData>(input, async (trx, device) => {
       const issued = await issueToken(trx, device.id, new Date());
       if (!issued.ok) return TOKEN_REFUSALS[issued.reason];
       await audited(actor, trx, input.unitId, device.id, "device.token.issue", { issued_at: issued.issuedAt.toISOString() });
@@ -199,8 +205,6 @@ export const issueStreamToken = guardedAction(
         data: { token: issued.token, command: simulatorCommand({ serial: device.serial, streamUrl: device.stream_url }, issued.token), previousValidUntil: null },
       };
     });
-    if (result.ok) refreshPages(input.unitId);
-    return result;
   },
   unitScope,
 );
@@ -209,9 +213,7 @@ export const rotateStreamToken = guardedAction(
   "rotateStreamToken",
   rotateTokenSchema,
   async (input, actor) => {
-    const result = await inTransaction<NewTokenData>(async (trx) => {
-      const device = await lockDevice(trx, input.unitId, input.deviceId);
-      if (!device) return NOT_FOUND;
+    return withLockedDevice<NewTokenData>(input, async (trx, device) => {
       const rotated = await rotateToken(trx, device.id, input.graceMinutes, new Date());
       if (!rotated.ok) return TOKEN_REFUSALS[rotated.reason];
       const until = rotated.previousValidUntil?.toISOString() ?? null;
@@ -224,8 +226,6 @@ export const rotateStreamToken = guardedAction(
         data: { token: rotated.token, command: simulatorCommand({ serial: device.serial, streamUrl: device.stream_url }, rotated.token), previousValidUntil: until },
       };
     });
-    if (result.ok) refreshPages(input.unitId);
-    return result;
   },
   unitScope,
 );
@@ -234,16 +234,12 @@ export const revokeStreamToken = guardedAction(
   "revokeStreamToken",
   deviceTokenSchema,
   async (input, actor) => {
-    const result = await inTransaction(async (trx) => {
-      const device = await lockDevice(trx, input.unitId, input.deviceId);
-      if (!device) return NOT_FOUND;
+    return withLockedDevice(input, async (trx, device) => {
       const revoked = await revokeToken(trx, device.id, new Date());
       if (!revoked.ok) return revoked.reason === "no_token" ? { ok: false, code: "conflict", message: "This device has no valid token to revoke." } : TOKEN_REFUSALS[revoked.reason];
       await audited(actor, trx, input.unitId, device.id, "device.token.revoke", { previous_in_grace_revoked: revoked.hadPrevious });
       return { ok: true, message: `Revoked the stream tokens of ${device.serial}. Corvane stops reading its stream; issue a new token to resume.` };
     });
-    if (result.ok) refreshPages(input.unitId);
-    return result;
   },
   unitScope,
 );
@@ -255,10 +251,8 @@ export const assignDevice = guardedAction(
   "assignDevice",
   assignDeviceSchema,
   async (input, actor) => {
-    const result = await inTransaction(async (trx) => {
-      // Lock order everywhere: device, then bed.
-      const device = await lockDevice(trx, input.unitId, input.deviceId);
-      if (!device) return NOT_FOUND;
+    // Lock order everywhere: device, then bed.
+    return withLockedDevice(input, async (trx, device) => {
       if (device.status === "decommissioned") return DECOMMISSIONED;
       const bed = await trx("beds").where({ id: input.bedId, unit_id: device.unit_id }).forUpdate().first("id", "label", "active");
       if (!bed || !bed.active) return { ok: false, code: "invalid_input", message: "Check the highlighted fields.", fieldErrors: { bedId: ["Choose a bed of this unit that is in service."] } };
@@ -298,8 +292,6 @@ export const assignDevice = guardedAction(
       const streams = device.status === "active" ? "" : " It is in maintenance, so Corvane reads its stream once it is back in service.";
       return { ok: true, message: `${device.serial} is on bed ${bed.label} from ${formatLocal(from, device.time_zone)}.${streams}` };
     });
-    if (result.ok) refreshPages(input.unitId);
-    return result;
   },
   unitScope,
 );
@@ -308,9 +300,7 @@ export const unassignDevice = guardedAction(
   "unassignDevice",
   unassignDeviceSchema,
   async (input, actor) => {
-    const result = await inTransaction(async (trx) => {
-      const device = await lockDevice(trx, input.unitId, input.deviceId);
-      if (!device) return NOT_FOUND;
+    return withLockedDevice(input, async (trx, device) => {
       const open = await trx("device_assignments as a")
         .join("beds as b", "b.id", "a.bed_id")
         .where("a.device_id", device.id)
@@ -330,8 +320,6 @@ export const unassignDevice = guardedAction(
       await audited(actor, trx, input.unitId, device.id, "device.unassign", { bed_id: open.bed_id, bed_label: open.label, at: when.at.toISOString(), backdated: input.at !== undefined });
       return { ok: true, message: `${device.serial} is off bed ${open.label} from ${formatLocal(when.at, device.time_zone)}. Corvane stops reading its stream.` };
     });
-    if (result.ok) refreshPages(input.unitId);
-    return result;
   },
   unitScope,
 );

@@ -4,6 +4,7 @@
 // PostgreSQL (device_attachments.content), never on disk, and served only through the guarded download route.
 import { createHash } from "node:crypto";
 import { fileTypeFromBuffer } from "file-type";
+import type { Knex } from "knex";
 import type { AttachmentType } from "@/lib/db/tables";
 
 /** Per file. next.config.ts allows 9 MB server-action bodies, so one full-size file and the form fields fit. */
@@ -48,6 +49,19 @@ export interface CheckedAttachment {
   /** Lower-case hex SHA-256 of the content (FIPS 180-4), recorded in the audit trail. */
   sha256: string;
   content: Buffer;
+}
+
+/** Stores a checked file under its maintenance entry, in the caller's transaction. */
+export async function insertAttachment(trx: Knex.Transaction, maintenanceId: string, a: CheckedAttachment, uploadedBy: string | null): Promise<void> {
+  await trx("device_attachments").insert({
+    maintenance_id: maintenanceId,
+    file_name: a.fileName,
+    content_type: a.contentType,
+    size_bytes: a.sizeBytes,
+    sha256: a.sha256,
+    content: a.content,
+    uploaded_by: uploadedBy,
+  });
 }
 
 export type AttachmentsCheck = { ok: true; attachments: CheckedAttachment[] } | { ok: false; messages: string[] };

@@ -376,22 +376,19 @@ export async function confirmDeviceImportBatch(
     const stored = storedRowsSchema.parse(batch.rows);
     if (stored.some((r) => r.outcome !== "add")) return { ok: false, code: "conflict", message: "This preview has rows with errors, so it cannot be imported. Fix the file and upload it again." };
 
+    /** The batch's one "device.import" entry: a failure when no device was written, else a success. */
+    const auditImport = (outcome: "success" | "failure", detail: Record<string, unknown>) =>
+      auditAs(
+        actor,
+        { action: "device.import", permission: "devices.manage", unitId: input.unitId, target: { type: "device_import_batch", id: batch.id }, outcome, detail },
+        trx,
+      );
+
     const markFailed = async (rows: AssessedRow[]) => {
       const failed = rows.filter((r) => r.outcome === "error");
       // The stored rows take the outcomes of the re-check, so the batch keeps why it failed.
       await trx.raw("UPDATE device_import_batches SET status = 'failed', confirmed_at = now(), rows = ?::jsonb WHERE id = ?", [JSON.stringify(rows), batch.id]);
-      await auditAs(
-        actor,
-        {
-          action: "device.import",
-          permission: "devices.manage",
-          unitId: input.unitId,
-          target: { type: "device_import_batch", id: batch.id },
-          outcome: "failure",
-          detail: { batch_id: batch.id, sha256: batch.sha256, rows: rows.length, failed_lines: failed.map((r) => r.line) },
-        },
-        trx,
-      );
+      await auditImport("failure", { batch_id: batch.id, sha256: batch.sha256, rows: rows.length, failed_lines: failed.map((r) => r.line) });
       const lines = failed.map((r) => r.line);
       return {
         ok: false as const,
@@ -430,17 +427,7 @@ export async function confirmDeviceImportBatch(
         ),
       );
     }
-    await auditAs(
-      actor,
-      {
-        action: "device.import",
-        permission: "devices.manage",
-        unitId: input.unitId,
-        target: { type: "device_import_batch", id: batch.id },
-        detail: { count: rows.length, batch_id: batch.id, sha256: batch.sha256 },
-      },
-      trx,
-    );
+    await auditImport("success", { count: rows.length, batch_id: batch.id, sha256: batch.sha256 });
     await trx("device_import_batches").where({ id: batch.id }).update({ status: "imported", confirmed_at: new Date() });
     return {
       ok: true,

@@ -8,7 +8,7 @@ import type { ActionResult } from "@/lib/auth/action-result";
 import { auditAs, type Actor } from "@/lib/auth/guard";
 import { db as defaultDb } from "@/lib/db/knex";
 import type { AttachmentType, DeviceStatus, MaintenanceKind } from "@/lib/db/tables";
-import { checkAttachments } from "./attachments";
+import { checkAttachments, insertAttachment } from "./attachments";
 import { deviceInUnit } from "./device-scope";
 import type { MaintenanceEntryInput } from "./maintenance.validation";
 
@@ -155,17 +155,7 @@ export async function addMaintenanceEntry(
         recorded_by: actor.userId,
       })
       .returning("id");
-    for (const a of checked.attachments) {
-      await trx("device_attachments").insert({
-        maintenance_id: entry!.id,
-        file_name: a.fileName,
-        content_type: a.contentType,
-        size_bytes: a.sizeBytes,
-        sha256: a.sha256,
-        content: a.content,
-        uploaded_by: actor.userId,
-      });
-    }
+    for (const a of checked.attachments) await insertAttachment(trx, entry!.id, a, actor.userId);
     if (firmwareUpdate) {
       await trx("devices").where({ id: device.id }).update({ firmware: input.firmwareAfter!, updated_at: new Date() });
     }

@@ -63,7 +63,7 @@ const fieldsFor = (serial: string) => ({
   model: "QF-9 bedside ECG (fictional)",
   firmware: "1.0.3",
   timestampResolutionMs: "7.8125",
-  streamUrl: `http://127.0.0.1:3200/devices/${serial.toUpperCase()}/stream`,
+  streamUrl: `http://127.0.0.1:3201/devices/${serial.toUpperCase()}/stream`,
   notes: "Spare from the store room.",
 });
 
@@ -151,10 +151,11 @@ describe("stream token", () => {
     expect(r.ok).toBe(true);
     const { token, command } = (r as { data: NewTokenData }).data;
     expect(token).toMatch(/^[A-Za-z0-9_-]{43}$/);
-    // The simulator command names the device, its token and the port of its stream address (lib/devices/simulator-command.ts).
+    // The simulator command names the device, its token and the port of its stream address (lib/devices/simulator-command.ts;
+    // 3201, not the 3200 of the demo simulator npm start runs, which serves its devices itself).
     expect(command).toContain("--device QF-0101");
     expect(command).toContain(token);
-    expect(command).toContain("--port 3200");
+    expect(command).toContain("--port 3201");
     const row = await db("devices").where({ id }).first();
     // SHA-256 as computed independently here (node:crypto), hex.
     expect(row!.stream_token_hash).toBe(createHash("sha256").update(token).digest("hex"));

@@ -2,6 +2,7 @@ import { execFileSync } from "node:child_process";
 import { parseArgs } from "node:util";
 import { describe, expect, it } from "vitest";
 import { simulatorCommand } from "@/lib/devices/simulator-command";
+import { DEFAULT_SIMULATOR_PORT } from "@/seeds/demo-data";
 
 /** The words a real POSIX shell (/bin/sh, the outside source for quoting rules) splits the command's arguments into. */
 function shellWords(command: string): string[] {
@@ -31,7 +32,7 @@ describe("simulator command", () => {
   });
 
   it("accepts localhost and the default http port", () => {
-    expect(simulatorCommand({ serial: "A1", streamUrl: "http://localhost:3200/devices/A1/stream" }, "t")).toContain("--port 3200");
+    expect(simulatorCommand({ serial: "A1", streamUrl: "http://localhost:3201/devices/A1/stream" }, "t")).toContain("--port 3201");
     expect(simulatorCommand({ serial: "A1", streamUrl: "http://127.0.0.1/devices/A1/stream" }, "t")).toContain("--port 80");
   });
 
@@ -43,6 +44,7 @@ describe("simulator command", () => {
     ["a query string", "http://127.0.0.1:4101/devices/LVG-NEW-01/stream?x=1"],
     ["credentials", "http://u:p@127.0.0.1:4101/devices/LVG-NEW-01/stream"],
     ["not a URL", "127.0.0.1:4101/devices/LVG-NEW-01/stream"],
+    ["the port of npm start's demo simulator, which serves it already", `http://127.0.0.1:${DEFAULT_SIMULATOR_PORT}/devices/LVG-NEW-01/stream`],
   ])("gives no command for %s (the simulator cannot serve it)", (_label, streamUrl) => {
     expect(simulatorCommand({ serial: "LVG-NEW-01", streamUrl }, "tok")).toBeNull();
   });

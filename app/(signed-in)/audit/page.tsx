@@ -45,6 +45,23 @@ function Outcome({ outcome }: { outcome: keyof typeof OUTCOME_TEXT }) {
   );
 }
 
+/** A labelled filter with its error list; the control inside takes its id and wiring from `control(name)`. */
+function FilterField({ name, label, wide, errors, children }: {
+  name: string;
+  label: React.ReactNode;
+  wide?: boolean;
+  errors: string[] | undefined;
+  children: React.ReactNode;
+}) {
+  return (
+    <div className={wide ? "lg:col-span-2" : undefined}>
+      <label htmlFor={`audit-${name}`} className="mb-1 block text-sm font-bold">{label}</label>
+      {children}
+      <FieldError id={`audit-${name}-error`} errors={errors} />
+    </div>
+  );
+}
+
 export default async function AuditPage({ searchParams }: { searchParams: Promise<Record<string, string | string[] | undefined>> }) {
   const actor = await guardPage("audit.view");
   const unitIds = unitsWhere(actor.grants, "audit.view");
@@ -91,8 +108,15 @@ export default async function AuditPage({ searchParams }: { searchParams: Promis
   const groups = [...new Set(actions.map((a) => `${a.split(".")[0]}.`))];
   const actionOptions = [...groups, ...actions];
   if (value("action") && !actionOptions.includes(value("action"))) actionOptions.push(value("action"));
-  const invalid = (k: string) => (fieldErrors[k] ? true : undefined);
-  const describedBy = (k: string) => `audit-${k}-error`;
+  /** A filter control's id, name, value and error wiring (its error list is `audit-<name>-error`, see FilterField). */
+  const control = (k: string, defaultValue = value(k)) => ({
+    id: `audit-${k}`,
+    name: k,
+    defaultValue,
+    className: "field-input",
+    "aria-invalid": fieldErrors[k] ? true : undefined,
+    "aria-describedby": `audit-${k}-error`,
+  });
   const anyFilter = filter !== null && [...query.keys()].some((k) => k !== "zone");
 
   return (
@@ -109,72 +133,49 @@ export default async function AuditPage({ searchParams }: { searchParams: Promis
       <form method="get" action="/audit" aria-labelledby="filters-heading" className="card space-y-4 p-4" noValidate>
         <h2 id="filters-heading">Find entries</h2>
         <div className="grid gap-x-4 gap-y-3 sm:grid-cols-2 lg:grid-cols-4">
-          <div>
-            <label htmlFor="audit-from" className="mb-1 block text-sm font-bold">From</label>
-            <input id="audit-from" name="from" type="datetime-local" step={60} defaultValue={value("from")} className="field-input"
-              aria-invalid={invalid("from")} aria-describedby={describedBy("from")} />
-            <FieldError id={describedBy("from")} errors={fieldErrors.from} />
-          </div>
-          <div>
-            <label htmlFor="audit-to" className="mb-1 block text-sm font-bold">Until <span className="font-normal text-muted">(not included)</span></label>
-            <input id="audit-to" name="to" type="datetime-local" step={60} defaultValue={value("to")} className="field-input"
-              aria-invalid={invalid("to")} aria-describedby={describedBy("to")} />
-            <FieldError id={describedBy("to")} errors={fieldErrors.to} />
-          </div>
-          <div className="lg:col-span-2">
-            <label htmlFor="audit-zone" className="mb-1 block text-sm font-bold">Times read on the clock of</label>
-            <select id="audit-zone" name="zone" defaultValue={zone} className="field-input" aria-invalid={invalid("zone")} aria-describedby={describedBy("zone")}>
+          <FilterField name="from" label="From" errors={fieldErrors.from}>
+            <input {...control("from")} type="datetime-local" step={60} />
+          </FilterField>
+          <FilterField name="to" label={<>Until <span className="font-normal text-muted">(not included)</span></>} errors={fieldErrors.to}>
+            <input {...control("to")} type="datetime-local" step={60} />
+          </FilterField>
+          <FilterField name="zone" label="Times read on the clock of" wide errors={fieldErrors.zone}>
+            <select {...control("zone", zone)}>
               {zones.map((z) => (
                 <option key={z.zone} value={z.zone}>{z.units.length ? `${z.units.join(", ")} (${z.zone})` : z.zone}</option>
               ))}
               {!zones.some((z) => z.zone === zone) && <option value={zone}>{zone}</option>}
             </select>
-            <FieldError id={describedBy("zone")} errors={fieldErrors.zone} />
-          </div>
-          <div>
-            <label htmlFor="audit-person" className="mb-1 block text-sm font-bold">Person</label>
-            <input id="audit-person" name="person" type="text" placeholder="e-mail or user id" autoComplete="off" defaultValue={value("person")} className="field-input"
-              aria-invalid={invalid("person")} aria-describedby={describedBy("person")} />
-            <FieldError id={describedBy("person")} errors={fieldErrors.person} />
-          </div>
-          <div>
-            <label htmlFor="audit-role" className="mb-1 block text-sm font-bold">Role</label>
-            <select id="audit-role" name="role" defaultValue={value("role")} className="field-input" aria-invalid={invalid("role")} aria-describedby={describedBy("role")}>
+          </FilterField>
+          <FilterField name="person" label="Person" errors={fieldErrors.person}>
+            <input {...control("person")} type="text" placeholder="e-mail or user id" autoComplete="off" />
+          </FilterField>
+          <FilterField name="role" label="Role" errors={fieldErrors.role}>
+            <select {...control("role")}>
               <option value="">Any role</option>
               {ROLES.map((r) => <option key={r} value={r}>{ROLE_LABELS[r]}</option>)}
             </select>
-            <FieldError id={describedBy("role")} errors={fieldErrors.role} />
-          </div>
-          <div>
-            <label htmlFor="audit-action" className="mb-1 block text-sm font-bold">Action</label>
-            <select id="audit-action" name="action" defaultValue={value("action")} className="field-input" aria-invalid={invalid("action")} aria-describedby={describedBy("action")}>
+          </FilterField>
+          <FilterField name="action" label="Action" errors={fieldErrors.action}>
+            <select {...control("action")}>
               <option value="">Any action</option>
               {actionOptions.map((a) => (
                 <option key={a} value={a}>{a.endsWith(".") ? `${a}* (every ${a.slice(0, -1)} action)` : a}</option>
               ))}
             </select>
-            <FieldError id={describedBy("action")} errors={fieldErrors.action} />
-          </div>
-          <div>
-            <label htmlFor="audit-outcome" className="mb-1 block text-sm font-bold">Outcome</label>
-            <select id="audit-outcome" name="outcome" defaultValue={value("outcome")} className="field-input" aria-invalid={invalid("outcome")} aria-describedby={describedBy("outcome")}>
+          </FilterField>
+          <FilterField name="outcome" label="Outcome" errors={fieldErrors.outcome}>
+            <select {...control("outcome")}>
               <option value="">Any outcome</option>
               {AUDIT_OUTCOMES.map((o) => <option key={o} value={o}>{OUTCOME_TEXT[o]}</option>)}
             </select>
-            <FieldError id={describedBy("outcome")} errors={fieldErrors.outcome} />
-          </div>
-          <div className="lg:col-span-2">
-            <label htmlFor="audit-patient" className="mb-1 block text-sm font-bold">Patient or stay</label>
-            <input id="audit-patient" name="patient" type="text" placeholder="record number or stay id" autoComplete="off" defaultValue={value("patient")} className="field-input"
-              aria-invalid={invalid("patient")} aria-describedby={describedBy("patient")} />
-            <FieldError id={describedBy("patient")} errors={fieldErrors.patient} />
-          </div>
-          <div className="lg:col-span-2">
-            <label htmlFor="audit-device" className="mb-1 block text-sm font-bold">Device</label>
-            <input id="audit-device" name="device" type="text" placeholder="serial number or device id" autoComplete="off" defaultValue={value("device")} className="field-input"
-              aria-invalid={invalid("device")} aria-describedby={describedBy("device")} />
-            <FieldError id={describedBy("device")} errors={fieldErrors.device} />
-          </div>
+          </FilterField>
+          <FilterField name="patient" label="Patient or stay" wide errors={fieldErrors.patient}>
+            <input {...control("patient")} type="text" placeholder="record number or stay id" autoComplete="off" />
+          </FilterField>
+          <FilterField name="device" label="Device" wide errors={fieldErrors.device}>
+            <input {...control("device")} type="text" placeholder="serial number or device id" autoComplete="off" />
+          </FilterField>
         </div>
         {Object.keys(fieldErrors).length > 0 && (
           <Notice tone="problem">

@@ -3,69 +3,23 @@
 // a live "stream" event of the unit (a stream came or went), coalesced so a flapping device does not refetch per event.
 // Sorted most trouble first by default; every column header sorts from the keyboard (buttons, aria-sort).
 import Link from "next/link";
-import { useCallback, useEffect, useRef, useState } from "react";
-import useSWR from "swr";
-import { useLiveEvents } from "@/components/live/useLiveEvents";
 import { StreamStateTag } from "@/components/devices/StreamStateTag";
+import { RefreshFailedNotice, useLiveRefresh, type LiveRefreshOptions } from "@/components/live/useLiveRefresh";
+import { SortableHeader as Header, SortButton, useSort } from "@/components/table/SortableHeader";
 import type { StreamHealthRowDTO, UnitStreamHealthDTO } from "@/lib/devices/health";
 import { STREAM_STATE_LABELS, type StreamState } from "@/lib/devices/stream-state";
 import {
   FIRST_DIRECTION, formatAge, formatDrift, formatInstant, formatOffset, formatRate, formatSeconds, plural, sortRows,
-  type HealthSortKey, type SortDirection,
+  type HealthSortKey,
 } from "./format";
 
-const REFRESH_MS = 15_000;
-/** After a stream event, wait this long for more before refetching, and refetch at most this often. */
-const EVENT_SETTLE_MS = 1_000;
-const EVENT_MIN_GAP_MS = 5_000;
-
-async function fetchHealth(url: string): Promise<UnitStreamHealthDTO> {
-  const res = await fetch(url, { cache: "no-store" });
-  if (!res.ok) throw new Error(`stream health request failed (${res.status})`);
-  return (await res.json()) as UnitStreamHealthDTO;
-}
-
-interface SortState {
-  key: HealthSortKey;
-  direction: SortDirection;
-}
-
-function SortIcon({ direction }: { direction: SortDirection | null }) {
-  return (
-    <svg aria-hidden="true" viewBox="0 0 12 16" className="h-4 w-3 shrink-0">
-      <path d="M6 1.5L10 6H2z" fill={direction === "ascending" ? "currentColor" : "none"} stroke="currentColor" strokeWidth="1.2" />
-      <path d="M6 14.5L10 10H2z" fill={direction === "descending" ? "currentColor" : "none"} stroke="currentColor" strokeWidth="1.2" />
-    </svg>
-  );
-}
-
-function SortButton({ sortKey, sort, onSort, children, className = "" }: {
-  sortKey: HealthSortKey;
-  sort: SortState;
-  onSort: (k: HealthSortKey) => void;
-  children: React.ReactNode;
-  className?: string;
-}) {
-  const active = sort.key === sortKey;
-  return (
-    <button
-      type="button"
-      onClick={() => onSort(sortKey)}
-      className={`inline-flex min-h-6 min-w-6 cursor-pointer items-center gap-1 rounded px-1 py-0.5 text-left font-bold hover:text-ink ${active ? "text-ink underline decoration-accent decoration-2 underline-offset-4" : ""} ${className}`}
-    >
-      {children}
-      <SortIcon direction={active ? sort.direction : null} />
-    </button>
-  );
-}
-
-function Header({ keys, sort, children }: { keys: HealthSortKey[]; sort: SortState; children: React.ReactNode }) {
-  return (
-    <th scope="col" aria-sort={keys.includes(sort.key) ? sort.direction : "none"} className="align-bottom">
-      {children}
-    </th>
-  );
-}
+const REFRESH: LiveRefreshOptions = {
+  what: "stream health",
+  refreshMs: 15_000,
+  settleMs: 1_000,
+  minGapMs: 5_000,
+  refetchOn: (e) => e.type === "stream",
+};
 
 /** A live stream with many gaps, malformed events or reconnects: a word and a triangle beside the state. */
 function ManyEventsTag() {
@@ -154,47 +108,10 @@ function StreamSummary({ counts }: { counts: UnitStreamHealthDTO["counts"] }) {
 
 export function StreamHealthTable({ initial }: { initial: UnitStreamHealthDTO }) {
   const url = `/api/units/${initial.unit.id}/stream-health`;
-  const [failedAt, setFailedAt] = useState<Date | null>(null);
-  const lastFetch = useRef(0);
-  useEffect(() => {
-    lastFetch.current = Date.now();
-  }, []);
-  const { data, mutate } = useSWR(url, fetchHealth, {
-    fallbackData: initial,
-    refreshInterval: REFRESH_MS,
-    revalidateOnFocus: false,
-    revalidateOnMount: false,
-    keepPreviousData: true,
-    onSuccess: () => {
-      lastFetch.current = Date.now();
-      setFailedAt(null);
-    },
-    onError: () => {
-      lastFetch.current = Date.now();
-      setFailedAt(new Date());
-    },
-  });
-  const dto = data ?? initial;
+  const { data: dto, failedAt } = useLiveRefresh(initial.unit.id, url, initial, REFRESH);
   const tz = dto.unit.timeZone;
 
-  const pending = useRef<ReturnType<typeof setTimeout> | undefined>(undefined);
-  useEffect(() => () => clearTimeout(pending.current), []);
-  const onLive = useCallback(
-    (e: { type: string }) => {
-      if (e.type !== "stream" || pending.current) return;
-      const wait = Math.max(EVENT_SETTLE_MS, EVENT_MIN_GAP_MS - (Date.now() - lastFetch.current));
-      pending.current = setTimeout(() => {
-        pending.current = undefined;
-        void mutate();
-      }, wait);
-    },
-    [mutate],
-  );
-  useLiveEvents(initial.unit.id, onLive);
-
-  const [sort, setSort] = useState<SortState>({ key: "trouble", direction: "descending" });
-  const onSort = (key: HealthSortKey) =>
-    setSort((s) => (s.key === key ? { key, direction: s.direction === "ascending" ? "descending" : "ascending" } : { key, direction: FIRST_DIRECTION[key] }));
+  const { sort, onSort } = useSort<HealthSortKey>({ key: "trouble", direction: "descending" }, (k) => FIRST_DIRECTION[k]);
   const rows = sortRows(dto.rows, sort.key, sort.direction);
   const base = `/units/${dto.unit.id}/devices`;
 
@@ -207,18 +124,10 @@ export function StreamHealthTable({ initial }: { initial: UnitStreamHealthDTO })
             Last refreshed <time dateTime={dto.asOf}>{formatInstant(dto.asOf, tz, dto.asOf)}</time> · refreshes every 15 s and when a
             stream comes or goes
           </p>
-          <div role="status">
-            {failedAt && (
-              <p className="mt-1 flex items-center gap-2 rounded-md border border-problem bg-problem-surface px-2 py-1 text-ink">
-                <svg aria-hidden="true" viewBox="0 0 20 20" className="h-4 w-4 shrink-0 text-problem">
-                  <circle cx="10" cy="10" r="8.5" fill="none" stroke="currentColor" strokeWidth="1.8" />
-                  <path d="M10 5v6m0 3.5v.5" fill="none" stroke="currentColor" strokeWidth="2" strokeLinecap="round" />
-                </svg>
-                Refresh failed at {formatInstant(failedAt.toISOString(), tz, dto.asOf)}; the table still shows the data of{" "}
-                {formatInstant(dto.asOf, tz, dto.asOf)}.
-              </p>
-            )}
-          </div>
+          <RefreshFailedNotice
+            failedAt={failedAt && formatInstant(failedAt.toISOString(), tz, dto.asOf)}
+            dataOf={formatInstant(dto.asOf, tz, dto.asOf)}
+          />
         </div>
       </div>
       <section aria-labelledby="stream-health-heading" className="card">

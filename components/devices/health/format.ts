@@ -3,6 +3,7 @@
 // nulls last, ties most trouble first.
 import { formatInTimeZone } from "date-fns-tz";
 import type { StreamHealthRowDTO } from "@/lib/devices/health";
+import type { SortDirection } from "@/components/table/SortableHeader";
 
 const MINUS = "\u2212";
 const signed = (v: number, digits: number) => {
@@ -48,7 +49,6 @@ export const plural = (n: number, one: string, many = `${one}s`) => `${n.toLocal
 
 export type HealthSortKey =
   | "trouble" | "serial" | "bed" | "lastBeat" | "rate" | "gaps" | "longestGap" | "duplicates" | "malformed" | "reconnects" | "offset" | "drift";
-export type SortDirection = "ascending" | "descending";
 
 /** The direction a column sorts in first: counts, gaps and trouble largest first; names and the rest smallest first.
  *  The last beat sorts oldest first (longest silence), offsets and drift by size whatever their sign. */

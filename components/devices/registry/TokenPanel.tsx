@@ -122,7 +122,7 @@ function RevokeForm({ unitId, deviceId, form }: { unitId: string; deviceId: stri
   );
 }
 
-export function TokenPanel({ unitId, deviceId, serial, timeZone, token, canManage, decommissioned, placeholderCommand }: {
+export function TokenPanel({ unitId, deviceId, serial, timeZone, token, canManage, decommissioned, placeholderCommand, demoSimulator }: {
   unitId: string;
   deviceId: string;
   serial: string;
@@ -132,6 +132,8 @@ export function TokenPanel({ unitId, deviceId, serial, timeZone, token, canManag
   decommissioned: boolean;
   /** The simulator command with a `<token>` placeholder, when the stream address is the simulator's. */
   placeholderCommand: string | null;
+  /** The device is one the demo simulator of `npm start` serves. */
+  demoSimulator: boolean;
 }) {
   // The forms' answers live here, in the panel that stays mounted: the form that asked may be gone after the refresh
   // (the Issue form is replaced by Rotate once a token exists), its answer must not be.
@@ -197,6 +199,16 @@ export function TokenPanel({ unitId, deviceId, serial, timeZone, token, canManag
           {!hasToken && <IssueForm unitId={unitId} deviceId={deviceId} form={issue} />}
           {hasToken && <RotateForm unitId={unitId} deviceId={deviceId} rotating={token.state === "rotating"} form={rotate} />}
           {hasToken && <RevokeForm unitId={unitId} deviceId={deviceId} form={revoke} />}
+        </div>
+      )}
+      {demoSimulator && !decommissioned && (
+        <div className="border-t border-line pt-4">
+          <h3 className="mb-2 font-bold">Demo simulator</h3>
+          <p className="text-sm text-muted">
+            The demo simulator that <code className="font-mono">npm start</code> runs serves this device. It reads the
+            device&apos;s current token when it starts, so after a rotation the stream goes on with the old token during the
+            grace period and with the new one from the simulator&apos;s next start.
+          </p>
         </div>
       )}
       {placeholderCommand && !decommissioned && (

@@ -5,7 +5,7 @@ import { notFound } from "next/navigation";
 import { can } from "@/lib/auth/roles";
 import { guardDevicePage } from "@/lib/devices/device-scope";
 import { deviceDetail } from "@/lib/devices/registry";
-import { simulatorCommand } from "@/lib/devices/simulator-command";
+import { servedByDemoSimulator, simulatorCommand } from "@/lib/devices/simulator-command";
 import { formatLocal } from "@/lib/time";
 import { Notice } from "@/components/Notice";
 import { StreamStateTag } from "@/components/devices/StreamStateTag";
@@ -112,6 +112,7 @@ export default async function DevicePage({ params }: { params: Promise<{ unitId:
             canManage={canManage}
             decommissioned={decommissioned}
             placeholderCommand={placeholderCommand}
+            demoSimulator={servedByDemoSimulator({ serial: d.serial, streamUrl: d.streamUrl })}
           />
           <AssignmentPanel
             unitId={d.unit.id}

@@ -4,7 +4,7 @@ import { notFound } from "next/navigation";
 import { guardPage } from "@/lib/auth/guard";
 import { db } from "@/lib/db";
 import { unitIdSchema } from "@/lib/units/unit-id.validation";
-import { DEFAULT_SIMULATOR_PORT } from "@/seeds/demo-data";
+import { demoSimulatorPort } from "@/lib/devices/simulator-command";
 import { RegisterDeviceForm } from "@/components/devices/registry/RegisterDeviceForm";
 
 export const metadata = { title: "Register a device" };
@@ -15,8 +15,20 @@ export default async function RegisterDevicePage({ params }: { params: Promise<{
   await guardPage("devices.manage", unitId.data);
   const unit = await db("units").where({ id: unitId.data }).first("id", "name");
   if (!unit) notFound();
-  // The port the demo simulator listens on by default (scripts/simulator.ts), for the suggested stream address.
-  const port = Number(process.env.CORVANE_SIM_PORT) || DEFAULT_SIMULATOR_PORT;
+  // The suggested stream address for a device the one-device simulator stands in for: the first port after the demo
+  // simulator's that no registered device's address uses yet (the demo simulator itself serves only the devices it
+  // loaded when npm start began).
+  const used = new Set(
+    (await db("devices").pluck("stream_url")).map((u: string) => {
+      try {
+        return Number(new URL(u).port);
+      } catch {
+        return null;
+      }
+    }),
+  );
+  let port = demoSimulatorPort() + 1;
+  while (used.has(port)) port += 1;
   return (
     <div className="max-w-4xl space-y-5">
       <div>
