@@ -323,7 +323,17 @@ describe("ingest follows the device registry", () => {
         process.kill(-child.pid!, "SIGTERM");
         await exited;
       }
-      rmSync(ledgerDir, { recursive: true, force: true });
+      // sh exits before the simulator it started, which writes its ledger on the way out: wait for the whole
+      // process group to be gone before removing the folder.
+      await waitFor(() => {
+        try {
+          process.kill(-child.pid!, 0);
+          return false;
+        } catch {
+          return true;
+        }
+      }, 15_000, "the simulator's process group to exit");
+      rmSync(ledgerDir, { recursive: true, force: true, maxRetries: 5 });
     }
   }, 90_000);
 
