@@ -40,12 +40,12 @@ function Row({ r, dto, href }: { r: StreamHealthRowDTO; dto: UnitStreamHealthDTO
   const kinds = Object.entries(r.malformedByKind).filter(([, n]) => n > 0);
   return (
     <tr className={r.state === "not_streaming" ? "text-muted" : ""}>
-      <th scope="row" className="whitespace-nowrap border-b border-line py-2 align-top">
-        <Link href={href} className="font-mono font-bold">
+      <th scope="row" className="border-b border-line py-2 align-top">
+        <Link href={href} className="whitespace-nowrap font-mono font-bold">
           {r.serial}
           <span className="sr-only"> — stream health of this device</span>
         </Link>
-        <span className="block text-sm font-normal text-muted">{r.model}</span>
+        <span className="block max-w-40 text-sm font-normal text-muted">{r.model}</span>
       </th>
       <td className="font-mono">{r.bedLabel ?? <span className="font-sans text-muted">no bed</span>}</td>
       <td>
@@ -84,7 +84,14 @@ function Row({ r, dto, href }: { r: StreamHealthRowDTO; dto: UnitStreamHealthDTO
       <td><Count n={r.reconnects} /></td>
       <td className="whitespace-nowrap font-mono">{formatOffset(r.clockOffsetMs)}</td>
       <td className="whitespace-nowrap">
-        {r.drift.msPerHour !== null ? <span className="font-mono">{formatDrift(r.drift.msPerHour)}</span> : <span className="text-sm text-muted">{r.drift.reason}</span>}
+        {r.drift.msPerHour !== null ? (
+          <span className="font-mono">{formatDrift(r.drift.msPerHour)}</span>
+        ) : (
+          // The full reason is on the device's Stream health tab; the table keeps its width for the figures.
+          <span className="text-sm text-muted" title={r.drift.reason ?? undefined}>
+            not yet<span className="sr-only">: {r.drift.reason}</span>
+          </span>
+        )}
       </td>
     </tr>
   );
