@@ -1,6 +1,6 @@
 "use server";
 import { auditAs, guardedAction } from "@/lib/auth/guard";
-import { localToInstant } from "@/lib/review/annotations.validation";
+import { localToInstant } from "@/lib/local-time";
 import { getUnit } from "@/lib/units/repository";
 import { verifyChainSchema } from "./audit.validation";
 import { verifyAuditChain as verify, type ChainRange, type ChainVerification } from "./verify";

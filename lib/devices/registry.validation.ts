@@ -3,7 +3,7 @@
 import { formatInTimeZone } from "date-fns-tz";
 import { z } from "zod";
 import { deviceFieldsSchema } from "@/lib/devices/device-fields.validation";
-import { localToInstant } from "@/lib/review/annotations.validation";
+import { chosenLocalInstant } from "@/lib/local-time";
 import { unitIdSchema } from "@/lib/units/unit-id.validation";
 
 const deviceId = z.uuid({ error: "Not a device id. Reload the page." });
@@ -108,15 +108,9 @@ export function assignmentInstant(
   notBefore: { at: Date; why: string },
 ): { ok: true; at: Date } | { ok: false; field: "time" | "occurrence"; message: string } {
   if (local === undefined) return { ok: true, at: now };
-  const r = localToInstant(local, timeZone);
-  if (r.kind === "missing") {
-    return { ok: false, field: "time", message: "This local time does not exist: the clocks went forward over it. Enter the time as the clock on the wall showed it." };
-  }
-  let at: Date;
-  if (r.kind === "ambiguous") {
-    if (!which) return { ok: false, field: "occurrence", message: `This time occurred twice (the clocks went back): choose the first (${r.earlierZone}) or the second (${r.laterZone}).` };
-    at = which === "earlier" ? r.earlier : r.later;
-  } else at = r.at;
+  const chosen = chosenLocalInstant(local, which, timeZone);
+  if (!chosen.ok) return chosen;
+  const at = chosen.at;
   if (at.getTime() > now.getTime()) return { ok: false, field: "time", message: "That time is in the future: enter a time up to now, or leave it empty for now." };
   if (at.getTime() < notBefore.at.getTime()) {
     return { ok: false, field: "time", message: `Enter a time after ${formatInTimeZone(notBefore.at, timeZone, "d MMM, HH:mm zzz")} (${notBefore.why}).` };

@@ -8,6 +8,7 @@
 //   severity                          all | watch | review ("all" for unit-wide figures such as coverage)
 //   metric, value, measure            the metric's name, its value (empty when undefined, e.g. a median of no flags)
 //                                     and what the value counts (count, minutes, fraction, hours, per_100_patient_hours)
+import { csvQuote } from "@/lib/csv";
 import { MESSAGE_KINDS, SEVERITY_KEYS, type AckFigures, type BurdenFigures, type CoverageFigures, type MessageFigures, type QualityMetricsDTO } from "./metrics";
 
 export const CSV_COLUMNS = [
@@ -18,7 +19,7 @@ export const CSV_COLUMNS = [
  *  with an apostrophe (OWASP "CSV injection", common practice); numbers are written by csvNumber, never through this. */
 export function csvText(v: string): string {
   const safe = /^[=+\-@\t\r]/.test(v) ? `'${v}` : v;
-  return /[",\r\n]/.test(safe) ? `"${safe.replaceAll('"', '""')}"` : safe;
+  return csvQuote(safe);
 }
 
 /** A number with at most 6 decimals (no binary noise such as 0.30000000000000004); empty for undefined. */

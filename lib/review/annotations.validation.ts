@@ -1,9 +1,10 @@
 // Clinical event annotations: the one schema shared by the Night review's form and the server actions, and the
 // conversion of the form's local date-time (the unit's wall clock) to an instant. A local time can be missing (the
 // spring-forward gap) or occur twice (the autumn repeat, DOMAIN W5); both are said to the person, never guessed.
-import { formatInTimeZone, fromZonedTime } from "date-fns-tz";
+import { formatInTimeZone } from "date-fns-tz";
 import { z } from "zod";
 import { ANNOTATION_KINDS } from "@/lib/db/tables";
+import { chosenLocalInstant } from "@/lib/local-time";
 
 export const ANNOTATION_KIND_LABELS: Record<(typeof ANNOTATION_KINDS)[number], string> = {
   medication: "Medication",
@@ -41,35 +42,6 @@ export const annotationUpdateSchema = annotationSchema.extend({
 });
 export type AnnotationUpdateInput = z.infer<typeof annotationUpdateSchema>;
 
-const MINUTE = 60_000;
-const MINUTE_FORMAT = "yyyy-MM-dd'T'HH:mm";
-
-type LocalInstant =
-  | { kind: "ok"; at: Date }
-  /** The local time occurs twice (clocks went back): the two instants, earlier first, with their zone abbreviations. */
-  | { kind: "ambiguous"; earlier: Date; later: Date; earlierZone: string; laterZone: string }
-  /** The local time does not exist (clocks went forward over it). */
-  | { kind: "missing" };
-
-/**
- * The instant(s) a local "YYYY-MM-DDTHH:MM" names in `timeZone`. Candidates are fromZonedTime's answer and the
- * instants 30 and 60 min either side (the DST shifts in use are 30 or 60 min); those whose local time reads the same
- * are the instants meant.
- */
-export function localToInstant(local: string, timeZone: string): LocalInstant {
-  const minute = local.slice(0, 16);
-  const guess = fromZonedTime(minute, timeZone).getTime();
-  const same = [-60, -30, 0, 30, 60]
-    .map((d) => guess + d * MINUTE)
-    .filter((ms) => formatInTimeZone(ms, timeZone, MINUTE_FORMAT) === minute)
-    .sort((a, b) => a - b);
-  if (same.length === 0) return { kind: "missing" };
-  if (same.length === 1) return { kind: "ok", at: new Date(same[0]!) };
-  const earlier = new Date(same[0]!);
-  const later = new Date(same[same.length - 1]!);
-  return { kind: "ambiguous", earlier, later, earlierZone: formatInTimeZone(earlier, timeZone, "zzz"), laterZone: formatInTimeZone(later, timeZone, "zzz") };
-}
-
 /** The stay as the time check needs it: the unit's zone and the stay's bounds. */
 export interface StayWindow {
   timeZone: string;
@@ -83,17 +55,9 @@ export interface StayWindow {
  * the stay is open); or the message to show beside the time field.
  */
 export function annotationInstant(input: Pick<AnnotationInput, "occurredAt" | "occurrence">, stay: StayWindow, now: Date): { ok: true; at: Date } | { ok: false; field: "occurredAt" | "occurrence"; message: string } {
-  const r = localToInstant(input.occurredAt, stay.timeZone);
-  if (r.kind === "missing") {
-    return { ok: false, field: "occurredAt", message: "This local time does not exist: the clocks went forward over it. Enter the time as the clock on the wall showed it." };
-  }
-  let at: Date;
-  if (r.kind === "ambiguous") {
-    if (!input.occurrence) {
-      return { ok: false, field: "occurrence", message: `This time occurred twice (the clocks went back): choose the first (${r.earlierZone}) or the second (${r.laterZone}).` };
-    }
-    at = input.occurrence === "earlier" ? r.earlier : r.later;
-  } else at = r.at;
+  const chosen = chosenLocalInstant(input.occurredAt, input.occurrence, stay.timeZone);
+  if (!chosen.ok) return { ok: false, field: chosen.field === "time" ? "occurredAt" : "occurrence", message: chosen.message };
+  const at = chosen.at;
   const end = stay.dischargedAt ?? now;
   if (at.getTime() < stay.admittedAt.getTime()) {
     return { ok: false, field: "occurredAt", message: `The patient was admitted at ${formatInTimeZone(stay.admittedAt, stay.timeZone, "d MMM, HH:mm zzz")}: enter a time after that.` };

@@ -1,7 +1,8 @@
 // Review nights (lib/review/night.ts): a night is the local 22:00 → 06:00 of the unit's IANA zone, named by the
 // local date of its evening, so the nights across a DST change last 9 h (autumn) or 7 h (spring).
 import { describe, expect, it } from "vitest";
-import { annotationInstant, annotationSchema, annotationUpdateSchema, localToInstant } from "@/lib/review/annotations.validation";
+import { localToInstant } from "@/lib/local-time";
+import { annotationInstant, annotationSchema, annotationUpdateSchema } from "@/lib/review/annotations.validation";
 import { lastCompletedNight, latestNight, nightParamSchema, nightsOfStay, reviewNight, type NightTimes } from "@/lib/review/night";
 
 const HOUR = 3_600_000;

@@ -1,4 +1,5 @@
 // The import file's columns explained with example values, and the template built from the same examples.
+import { csvQuote } from "@/lib/csv";
 import { IMPORT_COLUMNS, type ImportColumn } from "@/lib/devices/import.validation";
 
 export const IMPORT_COLUMN_GUIDE: Record<ImportColumn, { what: string; required: boolean; example: string; second: string }> = {
@@ -11,8 +12,6 @@ export const IMPORT_COLUMN_GUIDE: Record<ImportColumn, { what: string; required:
   notes: { what: "Free text, up to 2,000 characters. The column may be left out.", required: false, example: "Spare, store room B", second: "Back from repair, see service report" },
 };
 
-/** RFC 4180 quoting: a value with a comma, a double quote or a line break goes in double quotes, its quotes doubled. */
-const cell = (v: string) => (/[",\r\n]/.test(v) ? `"${v.replace(/"/g, '""')}"` : v);
-const line = (pick: "example" | "second") => IMPORT_COLUMNS.map((c) => cell(IMPORT_COLUMN_GUIDE[c][pick])).join(",");
+const line = (pick: "example" | "second") => IMPORT_COLUMNS.map((c) => csvQuote(IMPORT_COLUMN_GUIDE[c][pick])).join(",");
 /** The template offered for download: the header and two example rows (the integration test imports it). */
 export const IMPORT_TEMPLATE_CSV = [IMPORT_COLUMNS.join(","), line("example"), line("second")].join("\r\n") + "\r\n";

@@ -4,6 +4,7 @@
 //   hash = SHA-256(prev_hash ‖ JCS({seq, occurred_at, actor_user_id, …, client_address}))
 // A null is an empty field with no quotes; an empty string is a quoted empty field (""), so the two stay apart.
 import canonicalize from "canonicalize";
+import { csvQuote } from "@/lib/csv";
 import type { AuditEventRow } from "@/lib/db/tables";
 
 export const CSV_COLUMNS = [
@@ -11,13 +12,10 @@ export const CSV_COLUMNS = [
   "outcome", "detail", "request_id", "client_address", "prev_hash", "hash",
 ] as const;
 
-const NEEDS_QUOTES = /[",\r\n]/;
-
 /** One field: null → empty; "" → ""; quoted when RFC 4180 requires it (and for the empty string). */
 export function csvField(v: string | null): string {
   if (v === null) return "";
-  if (v === "" || NEEDS_QUOTES.test(v)) return `"${v.replaceAll('"', '""')}"`;
-  return v;
+  return v === "" ? '""' : csvQuote(v);
 }
 
 export const CSV_HEADER = `${CSV_COLUMNS.join(",")}\r\n`;
