@@ -1,8 +1,9 @@
 // The scheduler process, started by npm start beside the app: every minute (a pg-boss 10 cron schedule in
 // PostgreSQL, so ticks survive restarts and several schedulers never double up), and once at start-up, it POSTs to
 // the app's compute route on loopback with the scheduler secret. The computation itself runs in the app
-// (lib/compute/run.ts); this process only keeps time. A run that finds a backlog (after a first start, a restart or
-// an outage) asks for the next run at once instead of at the next whole minute, so catching up goes run after run.
+// (lib/compute/run.ts); this process only keeps time. A scheduled run computes at most two hours of windows per
+// stay (SCHEDULED_STEP_S); a run that leaves windows due (after a first start, a restart or an outage) asks for
+// the next run at once instead of at the next whole minute, so catching up goes run after run, every bed in step.
 // A second every-minute tick works the mail directly against the database (no app route): the reminder job
 // (lib/mail/reminders.ts) enqueues what is due, then the mail worker (lib/mail/deliver.ts) sends the outbox.
 // Every 10 minutes, and once at start-up, it signs a checkpoint of the audit trail's newest entry
@@ -29,9 +30,6 @@ const MAIL_TIMEOUT_S = 30 * 60;
 const RUN_TIMEOUT_MS = 15 * 60_000;
 /** The start-up run waits this long at most for the app to answer (npm start starts the app first). */
 const STARTUP_WAIT_MS = 120_000;
-/** A run that stored more than this many windows per stay was catching up: the next run starts at once. In steady
- *  state a run stores about one 5-min window per stay (windows start every minute) plus the hourly long ones. */
-const CATCH_UP_WINDOWS_PER_STAY = 5;
 
 const port = Number(process.env.PORT ?? 3000);
 if (!Number.isInteger(port) || port < 1 || port > 65_535) throw new Error(`PORT must be a port number, got "${process.env.PORT}"`);
@@ -47,18 +45,18 @@ if (!connectionString) throw new Error("knexfile.ts must give DATABASE_URL as a 
 let inFlight: AbortController | null = null;
 let stopping = false;
 
-/** One call of the compute route; throws on anything but a finished run (done or skipped). True when the run was
- *  catching up (see CATCH_UP_WINDOWS_PER_STAY). */
+/** One call of the compute route; throws on anything but a finished run (done or skipped). True when the run left
+ *  windows due for the next run (`more`). */
 async function tick(reason: "schedule" | "start-up" | "catch-up"): Promise<boolean> {
   const started = Date.now();
   inFlight = new AbortController();
   const timeout = setTimeout(() => inFlight?.abort(new Error(`no answer within ${RUN_TIMEOUT_MS / 1000} s`)), RUN_TIMEOUT_MS);
   try {
     const res = await fetch(computeUrl, { method: "POST", headers: { [SCHEDULER_SECRET_HEADER]: secret! }, signal: inFlight.signal });
-    const body = (await res.json().catch(() => null)) as { runId?: string; status?: string; stays?: number; windows?: number; flagsRaised?: number; error?: string } | null;
+    const body = (await res.json().catch(() => null)) as { runId?: string; status?: string; windows?: number; flagsRaised?: number; more?: boolean; error?: string } | null;
     if (!res.ok) throw new Error(`compute route answered ${res.status}${body?.error ? `: ${body.error}` : ""}`);
-    logger.info({ reason, runId: body?.runId, status: body?.status, windows: body?.windows, flagsRaised: body?.flagsRaised, ms: Date.now() - started }, "compute tick");
-    return body?.status === "done" && (body.windows ?? 0) > CATCH_UP_WINDOWS_PER_STAY * Math.max(1, body.stays ?? 0);
+    logger.info({ reason, runId: body?.runId, status: body?.status, windows: body?.windows, flagsRaised: body?.flagsRaised, more: body?.more, ms: Date.now() - started }, "compute tick");
+    return body?.status === "done" && body.more === true;
   } finally {
     clearTimeout(timeout);
     inFlight = null;
@@ -109,7 +107,7 @@ await boss.start();
 // A "stately" queue holds at most one waiting and one running tick: a slow run never builds a backlog.
 await boss.createQueue(QUEUE, { name: QUEUE, policy: "stately", retryLimit: 0, expireInSeconds: RUN_TIMEOUT_MS / 1000 + 60 });
 await boss.schedule(QUEUE, "* * * * *", {}, { tz: "UTC" });
-/** After a catching-up run, one more run right away (the stately queue keeps at most one waiting). */
+/** After a run that left windows due, one more run right away (the stately queue keeps at most one waiting). */
 const catchUp = async (catching: boolean) => {
   if (catching && !stopping) await boss.send(QUEUE, { catchUp: true });
 };

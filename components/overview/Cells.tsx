@@ -77,9 +77,11 @@ export function StreamCell({ stream, timeZone, asOf }: { stream: OverviewStreamD
       ? "Live"
       : stream.state === "no_device"
         ? "No device"
-        : stream.since
-          ? `Stale since ${formatClock(stream.since, timeZone, asOf)}`
-          : "Stale: no beat received";
+        : stream.state === "leads_off"
+          ? "Leads off"
+          : stream.since
+            ? `Stale since ${formatClock(stream.since, timeZone, asOf)}`
+            : "Stale: no beat received";
   const tag =
     stream.state === "live"
       ? "border-transparent text-ink"
@@ -90,6 +92,11 @@ export function StreamCell({ stream, timeZone, asOf }: { stream: OverviewStreamD
         <StreamIcon state={stream.state} />
         {text}
       </span>
+      {stream.state === "leads_off" && stream.lastBeatAt && (
+        <span className="block text-xs text-muted 2xl:text-sm">
+          last beat <time dateTime={stream.lastBeatAt}>{formatClock(stream.lastBeatAt, timeZone, asOf)}</time>
+        </span>
+      )}
     </td>
   );
 }

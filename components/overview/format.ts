@@ -53,7 +53,7 @@ export type SortKey = "bed" | "patient" | OverviewIndexKey | `${OverviewIndexKey
 export const FIRST_DIRECTION: Partial<Record<SortKey, SortDirection>> = { flags: "descending" };
 
 const GRADE_RANK = { good: 0, limited: 1, unusable: 2 } as const;
-const STREAM_RANK = { live: 0, stale: 1, no_device: 2 } as const;
+const STREAM_RANK = { live: 0, leads_off: 1, stale: 2, no_device: 3 } as const;
 const SEVERITY_RANK = { watch: 1, review: 2 } as const;
 
 /** A bed's value for a column; null sorts last in both directions. */

@@ -24,6 +24,13 @@ export function computeConfig(): ComputeConfig {
   return cached;
 }
 
+/**
+ * Time of windows a scheduled run computes per stay and kind, s. Two hours keep a catch-up run to a few seconds for
+ * a whole ward and move every bed forward in step; the scheduler starts the next run at once while windows are
+ * still due. In steady state a run has about a minute of windows to compute.
+ */
+export const SCHEDULED_STEP_S = 2 * 3600;
+
 /** Header the scheduler sends its secret in. */
 export const SCHEDULER_SECRET_HEADER = "x-corvane-scheduler-secret";
 

@@ -47,6 +47,13 @@ export interface RunComputeOptions {
   chunkBeats?: number;
   /** Baseline period and minimum; default CORVANE_BASELINE_HOURS and CORVANE_BASELINE_MIN_WINDOWS. */
   baseline?: Partial<BaselineSettings>;
+  /**
+   * Most time of windows computed per stay and kind in this run, s (windows starting within this span from the
+   * first one due); default: every window due. The scheduler sets a step so that a backlog (a first start, an
+   * outage) is worked the same stretch of every stay at a time, run after run: every bed has its first windows
+   * within seconds, and all reach the end of the previous night together, instead of waiting for the stays before.
+   */
+  stepS?: number;
 }
 
 export interface ComputeRunSummary {
@@ -63,6 +70,8 @@ export interface ComputeRunSummary {
   flagsCleared: number;
   /** Conditions that raised no flag because the patient's night had reached the rule set's cap. */
   flagsCapped: number;
+  /** Windows were left for the next run (some stay stopped at the end of its step): the scheduler runs again at once. */
+  more: boolean;
   failedStays: number;
   partitionsDropped: string[];
   durationMs: number;
@@ -105,6 +114,7 @@ async function finishRun(db: Knex, o: RunComputeOptions, s: ComputeRunSummary, r
           flags_cleared: s.flagsCleared,
           flags_capped: s.flagsCapped,
           failed_stays: s.failedStays,
+          more_due: s.more,
           partitions_dropped: s.partitionsDropped,
           duration_ms: s.durationMs,
           raised_flag_ids: raisedIds.slice(0, MAX_AUDITED_FLAG_IDS),
@@ -126,6 +136,7 @@ async function runLocked(db: Knex, o: RunComputeOptions, summary: ComputeRunSumm
     minWindows: o.baseline?.minWindows ?? cfg.CORVANE_BASELINE_MIN_WINDOWS,
   };
   const chunkBeats = o.chunkBeats ?? DEFAULT_CHUNK_BEATS;
+  const stepS = o.stepS ?? Infinity;
   const raisedIds: string[] = [];
   const errors: string[] = [];
   try {
@@ -148,7 +159,8 @@ async function runLocked(db: Knex, o: RunComputeOptions, summary: ComputeRunSumm
         params.set(stay.population, p);
       }
       try {
-        const r = await computeStay(stay, { db, runId: summary.runId, now, chunkBeats, baseline, params: p, ruleSet: ruleSets.get(stay.unitId) ?? null });
+        const r = await computeStay(stay, { db, runId: summary.runId, now, chunkBeats, baseline, params: p, ruleSet: ruleSets.get(stay.unitId) ?? null, stepS });
+        if (r.more) summary.more = true;
         summary.windows += r.windows;
         summary.baselines += r.baselines;
         summary.flagsRaised += r.raised.length;
@@ -188,6 +200,9 @@ export async function runCompute(o: RunComputeOptions): Promise<ComputeRunSummar
   if (o.chunkBeats !== undefined && !(Number.isInteger(o.chunkBeats) && o.chunkBeats >= MIN_CHUNK_BEATS)) {
     throw new RangeError(`chunkBeats must be a whole number ≥ ${MIN_CHUNK_BEATS}, got ${o.chunkBeats}`);
   }
+  if (o.stepS !== undefined && !(Number.isInteger(o.stepS) && o.stepS >= 3600)) {
+    throw new RangeError(`stepS must be a whole number of seconds ≥ 3600 (one hourly window), got ${o.stepS}`);
+  }
   if (o.now && Number.isNaN(o.now.getTime())) throw new RangeError("now is not a valid date");
   const db = o.db ?? defaultDb;
   const opts: RunComputeOptions = { ...o, requestId: o.requestId ?? randomUUID() };
@@ -205,6 +220,7 @@ export async function runCompute(o: RunComputeOptions): Promise<ComputeRunSummar
     flagsReactivated: 0,
     flagsCleared: 0,
     flagsCapped: 0,
+    more: false,
     failedStays: 0,
     partitionsDropped: [],
     durationMs: 0,

@@ -18,6 +18,8 @@ import { alignUp, LEFT_CONTEXT_S, LONG_S, LONG_STRIDE_S, SHORT_S, SHORT_STRIDE_S
 const CLOSED_STAY_SETTLE_MS = 5 * 60_000;
 /** A long window needs 70 min of beats with its context: 16,800 beats at the neonatal range gate's 240 bpm. */
 const LONG_CHUNK_MIN_BEATS = 20_000;
+/** Beats read past a step's last window, s: room for the cleaning's right-hand context (100 beats, 200 s at 30 bpm). */
+const STEP_CONTEXT_S = 600;
 /** Rows per INSERT (13 columns each, well under PostgreSQL's 65,535 bound parameters). */
 const INSERT_BATCH = 400;
 
@@ -30,11 +32,16 @@ interface StayContext {
   params: ComputationParams;
   /** The unit's rule set in force; null: no flags for this stay (none seeded, or it no longer validates). */
   ruleSet: RuleSet | null;
+  /** Most time of each window kind this run computes for the stay, s: windows starting within this span from the
+   *  first one due (Infinity: all that are due). */
+  stepS: number;
 }
 
 interface StayOutcome extends StayFlagOutcome {
   windows: number;
   baselines: number;
+  /** Windows are still due: the stay stopped at the end of ctx.stepS. */
+  more?: boolean;
 }
 
 const GRID = {
@@ -96,12 +103,34 @@ export async function computeStay(stay: ActiveStay, ctx: StayContext): Promise<S
     let nextS = latest ? latest.getTime() / 1000 + strideS : alignUp(admittedS, strideS);
     let continues = latest !== null;
     const limit = kind === "short" ? ctx.chunkBeats : Math.max(ctx.chunkBeats, LONG_CHUNK_MIN_BEATS);
+    // Windows starting before stepEndS are this run's; beats a little past the last one's end are read for the
+    // cleaning's right-hand context, so the windows are the same as one pass over the stay would give.
+    const stepEndS = nextS + ctx.stepS;
+    const stepReadMs = Math.min(untilMs, (stepEndS + windowS + STEP_CONTEXT_S) * 1000);
     while (nextS + windowS <= lastS) {
-      const beats = await loadBeats(db, stay, (nextS - LEFT_CONTEXT_S) * 1000, untilMs, limit);
-      const full = beats.count === limit;
-      const windows = kind === "short"
-        ? windowsOfChunk(beats, stay.population, "short", nextS, closed && !full, continues)
-        : windowsOfChunk(beats, stay.population, "long", nextS, closed && !full, continues);
+      if (nextS >= stepEndS) {
+        out.more = true;
+        break;
+      }
+      // What the step reads; when that completes no window (a stretch the engine leaves without one), it reads on
+      // to now, as a run without steps would.
+      let readUntilMs = stepReadMs;
+      let beats;
+      let full;
+      let complete: (ShortWindow | LongWindow)[];
+      for (;;) {
+        beats = await loadBeats(db, stay, (nextS - LEFT_CONTEXT_S) * 1000, readUntilMs, limit);
+        full = beats.count === limit;
+        // The last beats of a closed stay make every window up to them complete.
+        const final = closed && !full && readUntilMs >= lastS * 1000;
+        complete = kind === "short"
+          ? windowsOfChunk(beats, stay.population, "short", nextS, final, continues)
+          : windowsOfChunk(beats, stay.population, "long", nextS, final, continues);
+        if (complete.length || readUntilMs === untilMs) break;
+        readUntilMs = untilMs;
+      }
+      // The first complete window always counts (the engine may start later than nextS), so every step moves on.
+      const windows = complete.filter((w, k) => k === 0 || w.startS < stepEndS);
       if (!windows.length) {
         if (full) logger.warn({ stayId: stay.stayId, kind, beats: beats.count }, "a full chunk of beats completed no window; left for a later run");
         break;
@@ -115,7 +144,8 @@ export async function computeStay(stay: ActiveStay, ctx: StayContext): Promise<S
       out.capped += applied.capped;
       nextS = windows[windows.length - 1]!.startS + strideS;
       continues = true;
-      if (!full) break;
+      // Every beat up to now was read: nothing more is due until more beats arrive.
+      if (!full && readUntilMs === untilMs) break;
     }
   }
   return out;

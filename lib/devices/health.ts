@@ -30,10 +30,11 @@ const longestGapCache = new WeakMap<Knex, Map<string, { at: number; longestS: nu
 
 /**
  * Trouble tiers, most trouble first: offline (nothing for longer than OFFLINE_AFTER_MS) > stale > live with many
- * gaps, malformed events or reconnects > live and clean > not streaming (Corvane does not read the device — in
+ * gaps, malformed events or reconnects > leads off (the device is heard and says it has no patient signal: calmer than
+ * a silent stream, but worth a look) > live and clean > not streaming (Corvane does not read the device — in
  * maintenance, without a bed or without a token — so its stream cannot be in trouble).
  */
-export const TROUBLE_TIERS = { offline: 4, stale: 3, troubled: 2, clean: 1, not_streaming: 0 } as const;
+export const TROUBLE_TIERS = { offline: 5, stale: 4, troubled: 3, leads_off: 2, clean: 1, not_streaming: 0 } as const;
 export type TroubleTier = keyof typeof TROUBLE_TIERS;
 const TIER_SCALE = 1e10;
 
@@ -122,7 +123,9 @@ type DeviceRowSql = {
   bed_label: string | null;
   assigned: boolean;
   connected: boolean | null;
+  last_seen_at: Date | null;
   last_beat_at: Date | null;
+  lead_off: boolean | null;
   clock_offset_ms: number | null;
   malformed_by_kind: Record<string, number> | null;
 };
@@ -133,7 +136,7 @@ function devicesQuery(knex: Knex, scope: Scope, now: Date) {
   return knex.raw<{ rows: DeviceRowSql[] }>(
     `SELECT d.id, d.serial, d.model, d.status, d.stream_token_hash IS NOT NULL AS has_token,
             a.bed_label, a.device_id IS NOT NULL AS assigned,
-            st.connected, st.last_beat_at, st.clock_offset_ms, st.malformed_by_kind
+            st.connected, st.last_seen_at, st.last_beat_at, st.lead_off, st.clock_offset_ms, st.malformed_by_kind
        FROM devices d
        LEFT JOIN LATERAL (
          SELECT a.device_id, b.label AS bed_label FROM device_assignments a JOIN beds b ON b.id = a.bed_id
@@ -256,9 +259,11 @@ function troubleOf(state: StreamState, lastBeatAt: Date | null, events: number, 
     state === "not_streaming" ? "not_streaming"
     : state === "offline" ? "offline"
     : state === "stale" ? "stale"
+    : state === "leads_off" ? "leads_off"
     : events >= MANY_EVENTS_24H ? "troubled"
     : "clean";
-  // Within offline and stale, the longer silence first (never a beat: longest); within live, more events first.
+  // Within offline and stale, the longer silence first (never a beat: longest); within leads off and live, more events
+  // first.
   const silenceS = lastBeatAt ? Math.floor((now.getTime() - lastBeatAt.getTime()) / 1000) : TIER_SCALE - 1;
   const within = tier === "offline" || tier === "stale" ? silenceS : tier === "not_streaming" ? 0 : events;
   return { tier, rank: TROUBLE_TIERS[tier] * TIER_SCALE + Math.max(0, Math.min(within, TIER_SCALE - 1)) };
@@ -278,7 +283,10 @@ async function healthRows(knex: Knex, scope: Scope, now: Date, from: Date): Prom
     const t = totalsOf.get(d.id);
     const b = beatsOf.get(d.id);
     const because = notStreamingReason(d);
-    const state = streamStateOf({ streamed: because === null, connected: d.connected ?? false, lastBeatAt: d.last_beat_at }, now);
+    const state = streamStateOf(
+      { streamed: because === null, connected: d.connected ?? false, lastBeatAt: d.last_beat_at, lastSeenAt: d.last_seen_at, leadOff: d.lead_off ?? false },
+      now,
+    );
     const gaps = t?.gaps ?? 0;
     const malformed = t?.malformed ?? 0;
     const reconnects = t?.reconnects ?? 0;
@@ -318,7 +326,7 @@ export async function unitStreamHealth(unitId: string, now: Date = new Date(), k
     healthRows(knex, { unitId }, now, from),
   ]);
   if (!unit) return null;
-  const counts: Record<StreamState, number> = { live: 0, stale: 0, offline: 0, not_streaming: 0 };
+  const counts: Record<StreamState, number> = { live: 0, leads_off: 0, stale: 0, offline: 0, not_streaming: 0 };
   for (const r of rows) counts[r.state] += 1;
   return { unit: { id: unit.id, name: unit.name, timeZone: unit.time_zone }, asOf: now.toISOString(), from: from.toISOString(), counts, manyEvents: MANY_EVENTS_24H, rows };
 }

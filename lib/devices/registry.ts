@@ -116,6 +116,14 @@ const todayIn = (timeZone: string, now: Date) => formatInTimeZone(now, timeZone,
 const streamedOf = (r: { status: DeviceStatus; stream_token_hash: string | null; bed_label: string | null }) =>
   r.status === "active" && !!r.stream_token_hash && r.bed_label !== null;
 
+/** The stream status columns streamStateOf reads (left-joined: null when the ingest has never written the device). */
+const streamStatusOf = (r: { connected: boolean | null; last_seen_at: Date | null; last_beat_at: Date | null; lead_off: boolean | null }) => ({
+  connected: r.connected ?? false,
+  lastSeenAt: r.last_seen_at ?? null,
+  lastBeatAt: r.last_beat_at ?? null,
+  leadOff: r.lead_off ?? false,
+});
+
 /** The unit's devices for the registry list, or null when the unit does not exist. */
 export async function devicesOfUnit(
   unitId: string,
@@ -132,7 +140,7 @@ export async function devicesOfUnit(
     .where("d.unit_id", unitId)
     .select(
       "d.id", "d.serial", "d.model", "d.manufacturer", "d.firmware", "d.status", "d.decommissioned_at", ...TOKEN_COLUMNS,
-      "b.label as bed_label", "s.connected", "s.last_beat_at",
+      "b.label as bed_label", "s.connected", "s.last_seen_at", "s.last_beat_at", "s.lead_off",
       knex.raw("(SELECT max(m.next_due_on) FROM device_maintenance m WHERE m.device_id = d.id) AS next_due_on"),
     )
     .orderBy("d.serial");
@@ -153,7 +161,7 @@ export async function devicesOfUnit(
     status: r.status,
     bedLabel: r.bed_label ?? null,
     token: tokenOf(r, now),
-    stream: streamStateOf({ streamed: streamedOf(r), connected: r.connected ?? false, lastBeatAt: r.last_beat_at ?? null }, now),
+    stream: streamStateOf({ streamed: streamedOf(r), ...streamStatusOf(r) }, now),
     lastBeatAt: r.last_beat_at?.toISOString() ?? null,
     nextMaintenanceDue: r.next_due_on ?? null,
     maintenanceOverdue: r.status !== "decommissioned" && r.next_due_on !== null && r.next_due_on < today,
@@ -228,7 +236,7 @@ export async function deviceDetail(unitId: string, deviceId: string, now: Date =
       "d.id", "d.serial", "d.model", "d.manufacturer", "d.firmware", "d.timestamp_resolution_ms", "d.stream_url", "d.notes", "d.status",
       "d.created_at", "d.decommissioned_at", "d.decommission_reason", ...TOKEN_COLUMNS,
       "u.id as unit_id", "u.name as unit_name", "u.time_zone",
-      "reg.name as registered_by_name", "dec.name as decommissioned_by_name", "s.connected", "s.last_beat_at",
+      "reg.name as registered_by_name", "dec.name as decommissioned_by_name", "s.connected", "s.last_seen_at", "s.last_beat_at", "s.lead_off",
       knex.raw(`${VERSION_SQL} AS version`),
       knex.raw("(SELECT max(m.next_due_on) FROM device_maintenance m WHERE m.device_id = d.id) AS next_due_on"),
     );
@@ -277,7 +285,7 @@ export async function deviceDetail(unitId: string, deviceId: string, now: Date =
       ? { at: r.decommissioned_at.toISOString(), by: r.decommissioned_by_name ?? null, reason: r.decommission_reason ?? "" }
       : null,
     token: tokenOf(r, now),
-    stream: streamStateOf({ streamed: streamedOf({ ...r, bed_label: current?.bedLabel ?? null }), connected: r.connected ?? false, lastBeatAt: r.last_beat_at ?? null }, now),
+    stream: streamStateOf({ streamed: streamedOf({ ...r, bed_label: current?.bedLabel ?? null }), ...streamStatusOf(r) }, now),
     lastBeatAt: r.last_beat_at?.toISOString() ?? null,
     nextMaintenanceDue: nextDue,
     maintenanceOverdue: r.status !== "decommissioned" && nextDue !== null && nextDue < todayIn(r.time_zone, now),

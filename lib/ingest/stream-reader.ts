@@ -37,6 +37,9 @@ export class StreamReader {
   private stopped = false;
   private paused = false;
   private opens = 0;
+  /** The last connection was ended by this reader (a pause, new credentials or address), not lost: the next open is
+   *  not counted as a reconnect, which Stream health reports as trouble on the link. */
+  private closedByUs = false;
   private loggedKinds = new Set<MalformedKind | "unknown_event">();
   /** The token the open (or opening) connection presents. */
   private presented: string | null = null;
@@ -74,6 +77,7 @@ export class StreamReader {
   pause(): void {
     if (this.paused) return;
     this.paused = true;
+    this.closedByUs = this.opens > 0;
     this.close();
   }
 
@@ -112,6 +116,7 @@ export class StreamReader {
   private reconnectNow(): void {
     if (this.stopped) return;
     this.close();
+    this.closedByUs = this.opens > 0;
     this.backoffMs = READER_DEFAULTS.backoffMinMs;
     if (this.counters.connected) {
       this.counters.connected = false;
@@ -169,7 +174,8 @@ export class StreamReader {
     es.addEventListener("open", () => {
       if (this.es !== es) return;
       this.opens += 1;
-      if (this.opens > 1) this.counters.reconnects += 1;
+      if (this.opens > 1 && !this.closedByUs) this.counters.reconnects += 1;
+      this.closedByUs = false;
       this.counters.connected = true;
       this.counters.lastError = null;
       this.backoffMs = READER_DEFAULTS.backoffMinMs;

@@ -12,7 +12,7 @@ import type { IndexWindowRow } from "@/lib/db/tables";
 import type { ShortTermKey } from "@/lib/engine/indices";
 import { ALGORITHM_VERSION } from "@/lib/engine/version";
 import { unresolvedFlagsOf } from "./flags-view";
-import { LIVE_WITHIN_MS } from "@/lib/devices/stream-state";
+import { streamStateOf } from "@/lib/devices/stream-state";
 import { latestNight, type NightTimes } from "./night";
 
 /** The indices the overview shows, in column order (all from the 5-min windows; none research-only). */
@@ -53,8 +53,12 @@ export interface OverviewSparklineDTO {
   hr: (number | null)[];
 }
 
+/** The bed's device stream by the device screens' rules (lib/devices/stream-state.ts), with offline read as stale: the
+ *  ward needs to know that values are not current, not for how long the device has been silent. */
 export type OverviewStreamDTO =
   | { state: "live"; deviceId: string; lastBeatAt: string }
+  /** The device is heard but says no patient signal (an empty bed, or leads that came off); `lastBeatAt` null: no beat ever. */
+  | { state: "leads_off"; deviceId: string; lastBeatAt: string | null }
   /** A device is assigned but its last beat is older than LIVE_WITHIN_MS; `since` null: no beat received at all. */
   | { state: "stale"; deviceId: string; since: string | null }
   | { state: "no_device" };
@@ -101,7 +105,10 @@ type BedRow = {
   display_name: string | null;
   record_number: string | null;
   device_id: string | null;
+  connected: boolean | null;
+  last_seen_at: Date | null;
   last_beat_at: Date | null;
+  lead_off: boolean | null;
   window_start: Date | null;
   window_end: Date | null;
   grade: IndexWindowRow["grade"] | null;
@@ -120,7 +127,7 @@ function bedsQuery(knex: Knex, unitId: string, now: Date, version: string) {
   return knex.raw<{ rows: BedRow[] }>(
     `SELECT b.id AS bed_id, b.label AS bed_label,
             s.id AS stay_id, s.admitted_at, p.display_name, p.record_number,
-            a.device_id, st.last_beat_at,
+            a.device_id, st.connected, st.last_seen_at, st.last_beat_at, st.lead_off,
             w.window_start, w.window_end, w.grade, w.values, w.reasons, w.baseline_delta,
             (w.quality->>'coverage')::float8 AS coverage, w.quality->'reasons' AS quality_reasons
        FROM beds b
@@ -175,10 +182,14 @@ const SEVERITY_RANK = { watch: 1, review: 2 } as const;
 
 function streamOf(r: BedRow, now: Date): OverviewStreamDTO {
   if (!r.device_id) return { state: "no_device" };
-  if (r.last_beat_at && now.getTime() - r.last_beat_at.getTime() <= LIVE_WITHIN_MS) {
-    return { state: "live", deviceId: r.device_id, lastBeatAt: r.last_beat_at.toISOString() };
-  }
-  return { state: "stale", deviceId: r.device_id, since: r.last_beat_at?.toISOString() ?? null };
+  const lastBeatAt = r.last_beat_at?.toISOString() ?? null;
+  const state = streamStateOf(
+    { streamed: true, connected: r.connected ?? false, lastBeatAt: r.last_beat_at, lastSeenAt: r.last_seen_at, leadOff: r.lead_off ?? false },
+    now,
+  );
+  if (state === "live" && lastBeatAt) return { state, deviceId: r.device_id, lastBeatAt };
+  if (state === "leads_off") return { state, deviceId: r.device_id, lastBeatAt };
+  return { state: "stale", deviceId: r.device_id, since: lastBeatAt };
 }
 
 function latestOf(r: BedRow, medians: ReadonlyMap<string, number | null> | undefined): OverviewWindowDTO | null {

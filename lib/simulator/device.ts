@@ -23,6 +23,19 @@ export interface SimulatedDeviceConfig {
   timeZone: string;
   /** Resolution of the device's timestamps, ms (1, 1000/128, 1000/1024, …). */
   resolutionMs: number;
+  /**
+   * When a patient is on the device's bed (true time, epoch ms; `toMs` null while the stay is open). Outside these
+   * spans the device has no one connected: it sends no beats, only a lead-off status every 30 s, as a monitor with
+   * no leads attached does, and a lead-on status when a patient is connected. Omitted: a patient all the time (the
+   * one-device mode and the tests).
+   */
+  occupied?: readonly Occupancy[];
+}
+
+/** A span during which a patient is on the device's bed: [fromMs, toMs), epoch ms, toMs null = still there. */
+export interface Occupancy {
+  fromMs: number;
+  toMs: number | null;
 }
 
 /** A device's seed: the first 32 bits of SHA-256 of its serial. */
@@ -76,13 +89,33 @@ function assertDeviceConfig(c: SimulatedDeviceConfig): void {
   }
 }
 
+/** Where a block has no patient on the bed, as [from, to) ms since the block's start, ascending; [] when a patient
+ *  is there throughout (and always without an occupancy list). */
+export function emptySpans(occupied: readonly Occupancy[] | undefined, block: NightBlock): [number, number][] {
+  if (!occupied) return [];
+  const length = block.endMs - block.startMs;
+  const spans = occupied
+    .map((o): [number, number] => [Math.max(0, o.fromMs - block.startMs), Math.min(length, (o.toMs ?? Infinity) - block.startMs)])
+    .filter(([a, b]) => b > a)
+    .sort((x, y) => x[0] - y[0]);
+  const out: [number, number][] = [];
+  let t = 0;
+  for (const [a, b] of spans) {
+    if (a > t) out.push([t, a]);
+    t = Math.max(t, b);
+  }
+  if (t < length) out.push([t, length]);
+  return out;
+}
+
 /**
  * The records device `config` sends over `block`: the scenario's beats (lib/simulator/scenarios.ts), moved onto the
  * device clock (offset, drift and the nightly correction step) and quantised to its resolution with the engine's
  * quantiseBeats; status records for lead-off (at its start, every 30 s while it lasts, and when it ends) and, on
  * devices with a rhythm detector, at each rhythm change; network resends. A beat whose quantised interval is 0 (two
  * detections inside one clock tick, possible only at the end of a motion burst) is not sent: the next interval
- * already spans it.
+ * already spans it. While no patient is on the bed (`config.occupied`) nothing of that is sent: a lead-off status
+ * every 30 s instead, and a lead-on status when a patient is connected.
  */
 export function prepareNight(config: SimulatedDeviceConfig, block: NightBlock): PreparedNight {
   assertDeviceConfig(config);
@@ -91,7 +124,11 @@ export function prepareNight(config: SimulatedDeviceConfig, block: NightBlock): 
   const seed = subSeed(deviceSeed(config.serial), block.dayNumber);
   const origin = Math.floor(block.startMs / res) * res;
   const lead = block.startMs - origin;
-  const plan = planNight(config.scenario, seed, durationS, { resolutionMs: res, blockStartPhaseMs: lead });
+  const empty = emptySpans(config.occupied, block);
+  const noPatient = empty.length === 1 && empty[0]![0] === 0 && empty[0]![1] === durationS * 1000;
+  // A block with no patient at all needs only the device's clock, which does not depend on the length planned, so
+  // a minute is planned instead of a whole night of beats that would not be sent.
+  const plan = planNight(config.scenario, seed, noPatient ? Math.min(60, durationS) : durationS, { resolutionMs: res, blockStartPhaseMs: lead });
   const clock = deviceClock(
     {
       offsetMs: plan.clockOffsetMs,
@@ -141,6 +178,22 @@ export function prepareNight(config: SimulatedDeviceConfig, block: NightBlock): 
       extras.push({ t, op: OP_RESEND, leadOff: false, rhythm: 0, count: RESEND_COUNT[0] + rng.int(RESEND_COUNT[1] - RESEND_COUNT[0] + 1) });
     }
   }
+  // No patient on the bed: none of the above, a lead-off status every 30 s instead, and a lead-on status (with the
+  // rhythm, on a device that reports it) when a patient is connected.
+  const isEmptyAt = (t: number) => empty.some(([a, b]) => t >= a && t < b);
+  if (empty.length) {
+    const kept = extras.filter((x) => !isEmptyAt(x.t));
+    extras.length = 0;
+    extras.push(...kept);
+    let k = 0;
+    for (const [a, b] of empty) {
+      for (let t = a; t < b; t += LEAD_OFF_REPEAT_MS) extras.push({ t, op: OP_STATUS, leadOff: true, rhythm: 0, count: 0 });
+      if (b >= durationS * 1000) continue;
+      while (k < n && s.times[k]! * 1000 < b) k++;
+      const rhythm = plan.reportsRhythm && k < n ? RHYTHM_CODE[s.rhythm[k]!] : 0;
+      extras.push({ t: b, op: OP_STATUS, leadOff: false, rhythm, count: 0 });
+    }
+  }
   extras.sort((a, b) => a.t - b.t);
 
   // First beat after each gap.
@@ -187,12 +240,22 @@ export function prepareNight(config: SimulatedDeviceConfig, block: NightBlock): 
   };
   const deviceTicks = (t: number) => Math.round((lead + t + clock.offsetAt(block.startMs + t)) / res);
   let e = 0;
+  /** The empty span at or after the current beat, and whether the beat follows one. */
+  let span = 0;
+  let afterEmpty = false;
   for (let k = 0; k < n; k++) {
     const t = s.times[k]! * 1000;
     while (e < extras.length && extras[e]!.t <= t) {
       const x = extras[e++]!;
       if (x.op === OP_RESEND) put(x.t, OP_RESEND, 0, 0, x.count, 0, NO_LABEL, 0);
       else put(x.t, OP_STATUS, deviceTicks(x.t), 0, 0, packFlags(STATUS, x.leadOff, x.rhythm), NO_LABEL, 0);
+    }
+    if (empty.length) {
+      while (span < empty.length && empty[span]![1] <= t) span++;
+      if (span < empty.length && t >= empty[span]![0]) {
+        afterEmpty = true;
+        continue;
+      }
     }
     const rrTicks = Math.round(q.rr[k]! / res);
     if (rrTicks <= 0) continue;
@@ -206,8 +269,9 @@ export function prepareNight(config: SimulatedDeviceConfig, block: NightBlock): 
       Math.floor(q.quality[k]! * 100),
       packFlags(type, q.leadOff[k] === 1, 0),
       TRUTH_LABELS.indexOf(q.truth[k]!),
-      afterGap.get(k) ?? 0,
+      afterGap.get(k) ?? (afterEmpty ? FAULT.afterLeadOff : 0),
     );
+    afterEmpty = false;
   }
   for (; e < extras.length; e++) {
     const x = extras[e]!;
@@ -253,7 +317,10 @@ export class SimulatedDevice {
       // The block's records carry the seqs they had when this device last sent them, and a new block follows on.
       const { serial } = this.config;
       const evening = this.current.block.evening;
-      const first = this.ledger.firstSeqOf(serial, evening) ?? this.ledger.nextFree(serial);
+      const known = this.ledger.firstSeqOf(serial, evening);
+      // Numbered by an older simulator: the record at fromMs takes the next free seq, so the numbering goes on
+      // without a hole (the block's earlier records are never sent with the seqs this implies).
+      const first = known ?? (this.ledger.sentUnderOlderRecipe?.(serial) ? Math.max(1, this.ledger.nextFree(serial) - skipped) : this.ledger.nextFree(serial));
       this.ledger.noteBlock(serial, evening, first);
       this.store.startAt(first + skipped);
     }

@@ -1,11 +1,12 @@
 // Which devices the simulator plays: every device with an open assignment to a bed, read from PostgreSQL once at
-// start. Each gets its bed's demo scenario (seeds/demo-data.ts) and its unit's time zone; neonatal beds always
-// stream a neonatal scenario.
+// start. Each gets its bed's demo scenario (seeds/demo-data.ts), its unit's time zone, and the stays of its bed: a
+// device streams beats only while a patient is on the bed (an empty bed's monitor reports leads off); neonatal beds
+// always stream a neonatal scenario.
 import type { Knex } from "knex";
 import { decryptStreamToken, tokenMatches } from "@/lib/devices/stream-token";
 import type { UnitKind } from "@/lib/db/tables";
 import { DEMO_BED_SCENARIOS, type DemoScenario } from "@/seeds/demo-data";
-import type { SimulatedDeviceConfig } from "./device";
+import type { Occupancy, SimulatedDeviceConfig } from "./device";
 import { NEONATAL_SCENARIOS } from "./scenarios";
 
 /** A bed's scenario: its demo listing, else healthy sleep; a neonatal bed streams "nicu" unless listed as a
@@ -17,6 +18,7 @@ export function scenarioForBed(bedLabel: string, unitKind: UnitKind): DemoScenar
 }
 
 interface Row {
+  bed_id: string;
   serial: string;
   stream_token_enc: string;
   stream_token_hash: string;
@@ -47,6 +49,7 @@ export async function loadSimulatedDevices(db: Knex, secret?: string): Promise<L
     .where("d.status", "active")
     .whereNotNull("d.stream_token_enc")
     .select(
+      "b.id as bed_id",
       "d.serial",
       "d.stream_token_enc",
       "d.stream_token_hash",
@@ -57,6 +60,16 @@ export async function loadSimulatedDevices(db: Knex, secret?: string): Promise<L
       "u.time_zone",
     )
     .orderBy("d.serial");
+  const stays = await db("stays")
+    .whereIn("bed_id", [...new Set(rows.map((r) => r.bed_id))])
+    .orderBy("admitted_at")
+    .select<{ bed_id: string; admitted_at: Date; discharged_at: Date | null }[]>("bed_id", "admitted_at", "discharged_at");
+  const occupied = new Map<string, Occupancy[]>();
+  for (const s of stays) {
+    const list = occupied.get(s.bed_id) ?? [];
+    list.push({ fromMs: s.admitted_at.getTime(), toMs: s.discharged_at?.getTime() ?? null });
+    occupied.set(s.bed_id, list);
+  }
   return rows.map((row) => {
     let token: string;
     try {
@@ -73,6 +86,7 @@ export async function loadSimulatedDevices(db: Knex, secret?: string): Promise<L
       scenario: scenarioForBed(row.bed_label, row.unit_kind),
       timeZone: row.time_zone,
       resolutionMs: Number(row.timestamp_resolution_ms),
+      occupied: occupied.get(row.bed_id) ?? [],
       bedLabel: row.bed_label,
       streamUrl: row.stream_url,
     };

@@ -147,6 +147,12 @@ export class RecordStore {
     return [this.chunks[Math.floor(index / CHUNK)]!, index % CHUNK];
   }
 
+  /** The record's device time, epoch ms (what `record(seq).tDevice` gives, without building the record). */
+  deviceTime(seq: number): number {
+    const [c, i] = this.locate(seq);
+    return c.tDevice[i]!;
+  }
+
   record(seq: number): StreamRecord {
     const [c, i] = this.locate(seq);
     const flags = c.flags[i]!;

@@ -16,13 +16,23 @@ export interface SeqLedger {
   noteBlock(serial: string, evening: string, firstSeq: number): void;
   /** The device has sent records up to `lastSeq`. */
   noteSent(serial: string, lastSeq: number): void;
+  /**
+   * The device's numbering comes from an older simulator whose night blocks held other records (before empty beds
+   * stopped sending beats): its blocks cannot be rebuilt with the same seqs, so it starts now, numbering on from
+   * where it stopped, rather than backfill records the ingest may already hold under other seqs.
+   */
+  sentUnderOlderRecipe?(serial: string): boolean;
 }
 
 /** Blocks remembered per device: a week of evenings (restarts reach back at most to the previous evening). */
 const KEEP_BLOCKS = 8;
 
+/** Version 2: night blocks leave out beats while no patient is on the bed. A version-1 file keeps its last seqs
+ *  (numbering goes on) but not its blocks. */
+const LEDGER_VERSION = 2;
+
 const fileSchema = z.object({
-  version: z.literal(1),
+  version: z.union([z.literal(1), z.literal(LEDGER_VERSION)]),
   devices: z.record(
     z.string(),
     z.object({
@@ -35,7 +45,22 @@ type LedgerFile = z.infer<typeof fileSchema>;
 
 /** In memory, for tests and for a file-backed ledger's state. */
 export class MemorySeqLedger implements SeqLedger {
-  constructor(protected state: LedgerFile = { version: 1, devices: {} }) {}
+  /** Devices whose numbering came from a version-1 ledger. */
+  private readonly olderRecipe = new Set<string>();
+
+  constructor(protected state: LedgerFile = { version: LEDGER_VERSION, devices: {} }) {
+    if (state.version !== LEDGER_VERSION) {
+      for (const [serial, d] of Object.entries(state.devices)) {
+        this.olderRecipe.add(serial);
+        d.lastSeq = Math.max(d.lastSeq, ...Object.values(d.blocks).map((first) => first - 1));
+        d.blocks = {};
+      }
+      state.version = LEDGER_VERSION;
+    }
+  }
+  sentUnderOlderRecipe(serial: string): boolean {
+    return this.olderRecipe.has(serial);
+  }
 
   private device(serial: string) {
     return (this.state.devices[serial] ??= { blocks: {}, lastSeq: 0 });
@@ -71,7 +96,7 @@ export class MemorySeqLedger implements SeqLedger {
  */
 export class FileSeqLedger extends MemorySeqLedger {
   constructor(readonly path: string) {
-    let state: LedgerFile = { version: 1, devices: {} };
+    let state: LedgerFile = { version: LEDGER_VERSION, devices: {} };
     let text: string | null = null;
     try {
       text = readFileSync(path, "utf8");

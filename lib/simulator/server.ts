@@ -31,6 +31,17 @@ const RETENTION_MS = 36 * 3_600_000;
 const PREPARE_AHEAD_MS = 15 * 60_000;
 /** Events per write while replaying: about 60 kB, small enough to keep each turn of the event loop short. */
 const REPLAY_BATCH = 400;
+/**
+ * Replays go out in step across devices: a reader is not sent records more than this far (device time) ahead of
+ * the furthest-behind reader that is still replaying. Without it every device gets the same share of the link, so
+ * a neonatal monitor (2–3 beats a second) reaches the end of the previous night long after an adult one; in step,
+ * every bed's night fills in together (our choice for the demo; a real monitor replays on its own).
+ */
+export const REPLAY_IN_STEP_MS = 10 * 60_000;
+/** A replaying reader that has written nothing for this long (its client stopped reading) no longer holds others
+ *  back. */
+const REPLAY_STALL_MS = 2_000;
+const REPLAY_WAIT_MS = 20;
 const MAX_SPEED = 3600;
 const MAX_INJECT_BYTES = 1 << 20;
 /** Most ground-truth records one request may ask for. */
@@ -82,6 +93,8 @@ interface Reader {
   next: number;
   pumping: boolean;
   closed: boolean;
+  /** Wall time of the last write, ms (performance.now()). */
+  wroteAt: number;
 }
 
 interface Entry {
@@ -126,11 +139,15 @@ export function createSimulatorServer(options: SimulatorOptions): SimulatorServe
   const simulatedNow = () => wallStart + (now() - wallStart) * speed;
 
   const entries = new Map<string, Entry>();
+  /** Devices numbered by an older simulator (seq-ledger.ts): they start now instead of backfilling. */
+  const restartedNow: string[] = [];
   const started = performance.now();
   for (const config of options.devices) {
     if (entries.has(config.serial)) throw new RangeError(`device ${config.serial} is listed twice`);
     const device = new SimulatedDevice(config, options.truth, options.seqLedger ?? null);
-    if (backfill) {
+    const olderRecipe = options.seqLedger?.sentUnderOlderRecipe?.(config.serial) ?? false;
+    if (olderRecipe) restartedNow.push(config.serial);
+    if (backfill && !olderRecipe) {
       device.begin(backfillStartBlock(wallStart, config.timeZone).startMs);
       device.advanceTo(wallStart);
     } else {
@@ -138,6 +155,12 @@ export function createSimulatorServer(options: SimulatorOptions): SimulatorServe
       device.begin(wallStart + 1);
     }
     entries.set(config.serial, { device, tokenHash: hashStreamToken(config.token), readers: new Set() });
+  }
+  if (restartedNow.length) {
+    log.warn(
+      { devices: restartedNow },
+      "sequence ledger written by an older simulator: these devices go on numbering from where they stopped and start now, without a backfill",
+    );
   }
   log.info(
     { devices: entries.size, records: countRecords(), backfill, ms: Math.round(performance.now() - started) },
@@ -164,6 +187,20 @@ export function createSimulatorServer(options: SimulatorOptions): SimulatorServe
     });
   }
 
+  /** Device time of the furthest-behind other reader still replaying (REPLAY_IN_STEP_MS), or Infinity. */
+  function slowestReplay(self: Reader): number {
+    let slowest = Infinity;
+    const stalledBefore = performance.now() - REPLAY_STALL_MS;
+    for (const e of entries.values()) {
+      const store = e.device.store;
+      for (const o of e.readers) {
+        if (o === self || o.closed || o.next > store.lastSeq || o.next < store.firstSeq || o.wroteAt < stalledBefore) continue;
+        slowest = Math.min(slowest, store.deviceTime(o.next));
+      }
+    }
+    return slowest;
+  }
+
   /** Sends the reader everything from its cursor to the newest record, in batches, honouring backpressure. */
   async function pump(entry: Entry, r: Reader): Promise<void> {
     if (r.pumping || r.closed) return;
@@ -173,6 +210,12 @@ export function createSimulatorServer(options: SimulatorOptions): SimulatorServe
       while (!r.closed) {
         if (r.next < store.firstSeq) r.next = store.firstSeq;
         if (r.next > store.lastSeq) break;
+        if (store.deviceTime(r.next) > slowestReplay(r) + REPLAY_IN_STEP_MS) {
+          // Ahead of another device's replay: let it catch up (the furthest behind never waits, so all go on).
+          r.wroteAt = performance.now();
+          await new Promise((resolve) => setTimeout(resolve, REPLAY_WAIT_MS));
+          continue;
+        }
         let batch = "";
         for (let count = 0; r.next <= store.lastSeq && count < REPLAY_BATCH; count++) {
           const seq = r.next++;
@@ -184,8 +227,11 @@ export function createSimulatorServer(options: SimulatorOptions): SimulatorServe
           }
           batch += store.event(seq);
         }
-        if (!r.res.write(batch)) await waitForDrain(r.res);
+        const flushed = r.res.write(batch);
+        r.wroteAt = performance.now();
+        if (!flushed) await waitForDrain(r.res);
         else await yieldToEventLoop();
+        r.wroteAt = performance.now();
       }
     } finally {
       r.pumping = false;
@@ -251,7 +297,7 @@ export function createSimulatorServer(options: SimulatorOptions): SimulatorServe
       "x-accel-buffering": "no",
     });
     res.write(`retry: ${RETRY_MS}\n\n`);
-    const reader: Reader = { res, floor: lastEventId, next: lastEventId + 1, pumping: false, closed: false };
+    const reader: Reader = { res, floor: lastEventId, next: lastEventId + 1, pumping: false, closed: false, wroteAt: performance.now() };
     entry.readers.add(reader);
     const serial = entry.device.config.serial;
     log.info({ serial, lastEventId, lastSeq: store.lastSeq }, "reader connected");

@@ -205,6 +205,44 @@ describe("what a run computes", () => {
     expect(starts.at(-1)!.filter((w) => w.endsWith("unusable")).length).toBeGreaterThanOrEqual(20);
   });
 
+  it("works a backlog an hour of every stay per run, all in step, and ends with what one pass stores (source: analytic — a sliding computation must not depend on how it is split)", async () => {
+    const admitted = new Date("2025-05-20T01:00:00Z");
+    const discharged = new Date(admitted.getTime() + 3 * HOUR);
+    const now = new Date(discharged.getTime() + HOUR);
+    const sim = simulateHealthySleep({ seed: 43, durationS: 3 * 3600 + 60, startS: admitted.getTime() / 1000 });
+    const capped = [await makeStay("4W", admitted, discharged), await makeStay("4W", admitted, discharged)];
+    for (const s of capped) await insertBeats(s.deviceId, sim);
+    const count = async (stayId: string) => Number((await db("index_windows").where({ stay_id: stayId }).count<{ n: string }[]>("* as n"))[0]!.n);
+    const runs = [];
+    const afterFirst: number[] = [];
+    for (let i = 0; i < 30; i++) {
+      const run = await runCompute({ trigger: "test", db, now, chunkBeats: 5000, stepS: 3600 });
+      expect(run.status).toBe("done");
+      runs.push(run);
+      if (i === 0) for (const s of capped) afterFirst.push(await count(s.stayId));
+      if (!run.more) break;
+    }
+    // 3 h of beats an hour at a time (in chunks of 5,000 beats): a few runs, the last one saying nothing is left.
+    expect(runs.length).toBeGreaterThanOrEqual(3);
+    expect(runs.slice(0, -1).every((r) => r.more)).toBe(true);
+    expect(runs.at(-1)!.more).toBe(false);
+    // After the first run both stays have windows, the same number (same beats), and not yet all of them.
+    expect(afterFirst[0]).toBeGreaterThan(0);
+    expect(afterFirst[1]).toBe(afterFirst[0]);
+    expect(afterFirst[0]).toBeLessThan(await count(capped[0]!.stayId));
+    // A stay with the same beats computed in one uncapped run stores the very same windows.
+    const whole = await makeStay("4W", admitted, discharged);
+    await insertBeats(whole.deviceId, sim);
+    const one = await runCompute({ trigger: "test", db, now });
+    expect(one.more).toBe(false);
+    const rows = async (stayId: string) =>
+      (await db("index_windows").where({ stay_id: stayId }).orderBy(["kind", "window_start"]).select("kind", "window_start", "grade", "values", "baseline_delta"))
+        .map((w) => JSON.stringify(w));
+    expect(await rows(capped[0]!.stayId)).toEqual(await rows(whole.stayId));
+    expect(await rows(capped[1]!.stayId)).toEqual(await rows(whole.stayId));
+    await expect(runCompute({ trigger: "test", db, now, stepS: 600 })).rejects.toThrow(/stepS must be a whole number of seconds ≥ 3600/);
+  });
+
   it("uses the neonatal range gate for a neonatal unit (source: DOMAIN §2.1, §6.8)", async () => {
     const admitted = new Date("2025-05-10T05:00:00Z");
     const discharged = new Date(admitted.getTime() + HOUR);
@@ -302,7 +340,8 @@ describe("the compute route", () => {
       expect(right.status).toBe(200);
       expect(right.headers.get("cache-control")).toBe("no-store");
       const body = (await right.json()) as { runId: string; status: string; trigger: string };
-      expect(body).toMatchObject({ status: "done", trigger: "scheduler", algorithmVersion: ALGORITHM_VERSION });
+      // Nothing left due after this run: the scheduler waits for the next minute.
+      expect(body).toMatchObject({ status: "done", trigger: "scheduler", algorithmVersion: ALGORITHM_VERSION, more: false });
       expect(await db("audit_events").where({ request_id: "route-test-right" }).first()).toMatchObject({ action: "compute.run", actor_role: "scheduler", target_id: body.runId });
     } finally {
       vi.doUnmock("@/lib/db/knex");

@@ -185,6 +185,10 @@ describe("ingest", () => {
       await ingest.writer.flush();
       const seqs = (await db("beats").where({ device_id: id }).orderBy("seq").pluck("seq")).map(Number);
       expect(seqs).toEqual(Array.from({ length: 1600 }, (_, i) => i + 1));
+      // The full buffer paused the reader and it opened the stream again (more than one connection to the device),
+      // yet the link to the device never failed: Stream health must not report those as reconnects.
+      expect(device.connections).toBeGreaterThan(1);
+      expect(ingest.counters.get(id)!.reconnects).toBe(0);
     } finally {
       await ingest.stop();
       await ingestDb.destroy();

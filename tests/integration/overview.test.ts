@@ -262,6 +262,18 @@ describe("stream status", () => {
     o = (await wardOverview(unitId, NOW, db))!;
     expect(bedOf(o, ids.live.stayId).stream).toEqual({ state: "stale", deviceId: ids.live.deviceId, since: older.toISOString() });
     await setLastBeat(ids.live.deviceId, new Date(NOW.getTime() - 10_000));
+
+    // The same monitor, now heard 20 s ago with a lead-off status and still connected: leads off, with its last beat.
+    // An empty bed's monitor that reports lead-off and has never sent a beat: leads off with no last beat.
+    await db("device_stream_status").where({ device_id: ids.leadOff.deviceId }).update({ lead_off: true, last_seen_at: new Date(NOW.getTime() - 20_000) });
+    await db("device_stream_status")
+      .insert({ device_id: ids.emptyWithDevice, connected: true, lead_off: true, last_seen_at: new Date(NOW.getTime() - 20_000), updated_at: NOW })
+      .onConflict("device_id")
+      .merge(["connected", "lead_off", "last_seen_at"]);
+    o = (await wardOverview(unitId, NOW, db))!;
+    expect(bedOf(o, ids.leadOff.stayId).stream).toEqual({ state: "leads_off", deviceId: ids.leadOff.deviceId, lastBeatAt: new Date(NOW.getTime() - 5 * MIN).toISOString() });
+    expect(new Map(o.beds.map((b) => [b.bedLabel, b])).get("OV-E1")!.stream).toEqual({ state: "leads_off", deviceId: ids.emptyWithDevice, lastBeatAt: null });
+    await db("device_stream_status").whereIn("device_id", [ids.leadOff.deviceId, ids.emptyWithDevice]).update({ lead_off: false });
   });
 });
 

@@ -18,7 +18,7 @@ import { loadSimulatedDevices, scenarioForBed } from "@/lib/simulator/load-devic
 import { eveningAnchor, LEAD_IN_MS, nightBlock } from "@/lib/simulator/night";
 import type { RecordTruth } from "@/lib/simulator/records";
 import { FileSeqLedger, MemorySeqLedger, type SeqLedger } from "@/lib/simulator/seq-ledger";
-import { createSimulatorServer, RETRY_MS, type SimulatorServer } from "@/lib/simulator/server";
+import { createSimulatorServer, REPLAY_IN_STEP_MS, RETRY_MS, type SimulatorServer } from "@/lib/simulator/server";
 import { parseStreamEvent, type BeatRecord, type StatusRecord, type StreamRecord } from "@/lib/streaming/protocol";
 import { seed } from "@/seeds/01_demo";
 import { BEDS_PER_UNIT, DEMO_BED_SCENARIOS, DEMO_TIME_ZONE, DEMO_UNITS, demoDeviceSerial } from "@/seeds/demo-data";
@@ -267,6 +267,45 @@ describe("simulator stream endpoint", () => {
     expect(text).toMatch(/^: heartbeat$/m);
   });
 
+  it("replays several devices in step: when the first has sent its whole backfill, the other is within REPLAY_IN_STEP_MS (plus a batch)", async () => {
+    // A neonate sends about 2.4 records a second and an adult about 1: with an equal share of the link each, the adult
+    // would reach the end of a 12-h backfill while the neonate was still some 7 h behind.
+    const { sim, base } = await serve([deviceConfig("SIM-N", "nicu"), deviceConfig("SIM-A", "healthy_sleep")]);
+    const target = (serial: string) => sim.device(serial)!.store.lastSeq;
+    const latest = new Map<string, number>();
+    /** When the first of the two has sent its whole backfill: how far behind the other one is (device time). */
+    let behindAtFirstEnd: number | null = null;
+    const read = async (serial: string) => {
+      const res = await fetch(`${base}/devices/${serial}/stream`, { headers: { authorization: `Bearer token-of-${serial}` }, signal: AbortSignal.timeout(30_000) });
+      const reader = res.body!.getReader();
+      const decoder = new TextDecoder();
+      let carry = "";
+      let ids = 0;
+      while (ids < target(serial)) {
+        const { value, done } = await reader.read();
+        if (done) break;
+        const text = carry + decoder.decode(value, { stream: true });
+        const cut = text.lastIndexOf("\n") + 1;
+        const lines = text.slice(0, cut);
+        ids += (lines.match(/^id: /gm) ?? []).length;
+        const times = [...lines.matchAll(/"tDevice":(\d+(?:\.\d+)?)/g)];
+        if (times.length) latest.set(serial, Number(times.at(-1)![1]));
+        carry = text.slice(cut);
+        if (ids >= target(serial) && behindAtFirstEnd === null) {
+          const other = serial === "SIM-N" ? "SIM-A" : "SIM-N";
+          behindAtFirstEnd = latest.get(serial)! - (latest.get(other) ?? -Infinity);
+        }
+      }
+      await reader.cancel();
+      return ids;
+    };
+    const [n, a] = await Promise.all([read("SIM-N"), read("SIM-A")]);
+    expect([n, a]).toEqual([target("SIM-N"), target("SIM-A")]);
+    // A reader that connects first runs ahead until the other connects, then waits for it. One batch is 400 records:
+    // under 7 min of an adult's beats (DOMAIN §6.1: μ ≥ 900 ms ⇒ < 67 beats a minute).
+    expect(behindAtFirstEnd).toBeLessThan(REPLAY_IN_STEP_MS + 7 * MINUTE);
+  });
+
   it("writes a long replay in batches, so the event loop stays responsive", async () => {
     // At 23:00 the backfill holds 28 h of a neonate's beats: about 240,000 records (DOMAIN §6.8: 143 bpm).
     const { sim, base } = await serve([deviceConfig("SIM-N", "nicu")], { now: () => Date.parse("2026-11-21T04:00:00Z") });
@@ -346,6 +385,47 @@ describe("simulator determinism and backfill", () => {
     expect(Math.abs(covered - c.nightHours)).toBeLessThan(10 / 3600); // within 10 s: one beat at each edge
   });
 
+  it("sends beats only while a patient is on the bed; otherwise a lead-off status every 30 s, lead-on at admission", async () => {
+    // Our choice (cp): a monitor with no patient connected reports leads off and no intervals.
+    const admitted = EVENING + 4 * HOUR;
+    const discharged = EVENING + 8 * HOUR;
+    const stay = { ...deviceConfig("SIM-A", "af_episodes"), occupied: [{ fromMs: admitted, toMs: discharged }] };
+    const empty = { ...deviceConfig("SIM-B", "healthy_sleep"), occupied: [] };
+    const always = deviceConfig("SIM-A", "af_episodes");
+    const { sim } = await serve([stay, empty], { truth: true });
+    const { records, truth } = sent(sim, "SIM-A");
+    // Seqs stay contiguous from 1: leaving beats out never leaves a hole the ingest would count as a gap.
+    expect(truth.map((t) => t.seq)).toEqual(Array.from({ length: truth.length }, (_, i) => i + 1));
+    const beatTimes = truth.filter((t) => t.kind === "beat").map((t) => t.tTrue);
+    expect(beatTimes.length).toBeGreaterThan(3 * 3600); // 4 h of a patient at about 60 bpm and more
+    expect(Math.min(...beatTimes)).toBeGreaterThanOrEqual(admitted);
+    expect(Math.max(...beatTimes)).toBeLessThan(discharged);
+    // The same device with a patient throughout sends the very same beats in that span.
+    const { sim: full } = await serve([always], { truth: true });
+    const whole = sent(full, "SIM-A");
+    const fullBeats = whole.records.filter((r, k) => whole.truth[k]!.tTrue >= admitted && whole.truth[k]!.tTrue < discharged);
+    expect(beats(records).map((b) => [b.tDevice, b.rr])).toEqual(beats(fullBeats).map((b) => [b.tDevice, b.rr]));
+    // Before admission and after discharge: lead-off statuses 30 s apart; at admission a lead-on status.
+    const st = records.map((r, k) => ({ r, t: truth[k]!.tTrue })).filter((x) => x.r.kind === "status");
+    const before = st.filter((x) => x.t < admitted);
+    expect(before.every((x) => (x.r as StatusRecord).leadOff)).toBe(true);
+    expect(before.length).toBe(Math.ceil((admitted - (EVENING - LEAD_IN_MS)) / 30_000));
+    const onAt = st.find((x) => x.t === admitted)!;
+    expect((onAt.r as StatusRecord).leadOff).toBe(false);
+    expect((onAt.r as StatusRecord).rhythm).toBeDefined(); // this scenario's device reports its rhythm
+    const after = st.filter((x) => x.t >= discharged);
+    expect(after.length).toBeGreaterThan(0);
+    expect(after.every((x) => (x.r as StatusRecord).leadOff)).toBe(true);
+    expect(Math.max(...after.map((x, k) => (k ? x.t - after[k - 1]!.t : 0)))).toBe(30_000);
+    // A bed with no stay at all: no beats, only lead-off statuses.
+    const other = sent(sim, "SIM-B").records;
+    expect(beats(other)).toHaveLength(0);
+    expect(statuses(other).every((r) => r.leadOff)).toBe(true);
+    // Still pure with an occupancy list.
+    const night = nightBlock("2026-11-19", TZ);
+    expect(prepareNight(stay, night)).toEqual(prepareNight({ ...stay, occupied: [...stay.occupied] }, night));
+  });
+
   it("keeps each device's numbering across a restart on a later local day (sequence ledger)", async () => {
     const ledger = new MemorySeqLedger();
     let wall = NOW;
@@ -384,8 +464,34 @@ describe("simulator determinism and backfill", () => {
     expect(b.firstSeqOf("SIM-A", "2026-11-20")).toBe(80_001);
     expect(b.firstSeqOf("SIM-A", "2026-11-21")).toBeNull();
     expect(b.nextFree("SIM-A")).toBe(91_001);
-    writeFileSync(path, JSON.stringify({ version: 1, devices: { "SIM-A": { blocks: { yesterday: 1 }, lastSeq: 3 } } }));
+    writeFileSync(path, JSON.stringify({ version: 2, devices: { "SIM-A": { blocks: { yesterday: 1 }, lastSeq: 3 } } }));
     expect(() => new FileSeqLedger(path)).toThrow(/not a simulator sequence ledger/);
+    rmSync(dir, { recursive: true, force: true });
+  });
+
+  it("starts a device now, numbering on, when its ledger comes from the simulator before empty beds sent no beats", async () => {
+    // A version-1 ledger numbered night blocks that held beats on empty beds too: rebuilt now, the same blocks have
+    // fewer records, so their old seqs no longer fit. The device goes on after its highest seq, from now, and sends
+    // nothing the ingest may already hold under other seqs.
+    const dir = mkdtempSync(join(tmpdir(), "corvane-ledger-"));
+    const path = join(dir, "seq.json");
+    writeFileSync(path, JSON.stringify({ version: 1, devices: { "SIM-A": { blocks: { "2026-11-19": 1 }, lastSeq: 100_000 } } }));
+    const ledger = new FileSeqLedger(path);
+    expect(ledger.sentUnderOlderRecipe("SIM-A")).toBe(true);
+    expect(ledger.sentUnderOlderRecipe("SIM-B")).toBe(false);
+    expect(ledger.firstSeqOf("SIM-A", "2026-11-19")).toBeNull();
+    const { sim } = await serve([deviceConfig("SIM-A", "healthy_sleep"), deviceConfig("SIM-B", "healthy_sleep")], { truth: true, seqLedger: ledger });
+    const a = sim.device("SIM-A")!.store;
+    expect(a.firstSeq).toBe(100_001); // the next seq after the old ledger's last: no hole for the ingest to count
+    expect(a.lastSeq).toBeLessThan(100_001); // nothing sent yet: it starts at now
+    // Another device of the same start, unknown to the old ledger, backfills as usual.
+    const b = sim.device("SIM-B")!.store;
+    expect(b.firstSeq).toBe(1);
+    expect(b.truth(1).tTrue).toBeLessThan(NOW - 11 * HOUR);
+    ledger.save();
+    const again = new FileSeqLedger(path);
+    expect(again.sentUnderOlderRecipe("SIM-A")).toBe(false); // saved as version 2
+    expect(again.nextFree("SIM-A")).toBeGreaterThanOrEqual(100_001);
     rmSync(dir, { recursive: true, force: true });
   });
 
@@ -692,6 +798,14 @@ describe("simulator devices from PostgreSQL", () => {
     const devices = await loadSimulatedDevices(db);
     const labels = DEMO_UNITS.flatMap((u) => Array.from({ length: BEDS_PER_UNIT }, (_, i) => `${u.bedPrefix}-${String(i + 1).padStart(2, "0")}`));
     expect(devices.map((d) => d.serial)).toEqual(labels.map(demoDeviceSerial).sort());
+    // Each device carries its bed's stays (seeds/demo-data.ts DEMO_STAYS): none on 4W-11, one still open on 4W-01.
+    const stays = await db("stays as s").join("beds as b", "b.id", "s.bed_id").select("b.label", "s.admitted_at", "s.discharged_at");
+    for (const d of devices) {
+      const ofBed = stays.filter((x) => x.label === d.bedLabel).sort((x, y) => x.admitted_at - y.admitted_at);
+      expect(d.occupied).toEqual(ofBed.map((x) => ({ fromMs: x.admitted_at.getTime(), toMs: x.discharged_at?.getTime() ?? null })));
+    }
+    expect(devices.find((d) => d.bedLabel === "4W-11")!.occupied).toEqual([]);
+    expect(devices.find((d) => d.bedLabel === "4W-01")!.occupied).toMatchObject([{ toMs: null }]);
     for (const d of devices) {
       expect(d.scenario).toBe(DEMO_BED_SCENARIOS[d.bedLabel]);
       expect(d.timeZone).toBe(TZ);

@@ -183,9 +183,13 @@ describe("the unit table", () => {
     );
     // A sample a minute before the window: not counted.
     await db("device_health_minutes").insert({ device_id: ids.troubled, minute: new Date(from - MIN), reconnects: 50, clock_offset_ms: 1e6 });
+
+    // A monitor on an empty bed: connected, its last status record (20 s ago) says lead-off, no beat for 5 min.
+    ids.leadsOff = await addDevice(unitId, "A-LEADS-OFF");
+    await setStatus(ids.leadsOff, new Date(t0 - 5 * MIN), true, { lead_off: true, last_seen_at: new Date(t0 - 20_000) });
   });
 
-  it("gives each device its state at the bounds of live, stale and offline, and not streaming with its reason (source: lib/devices/stream-state.ts)", async () => {
+  it("gives each device its state at the bounds of live, stale and offline, leads off, and not streaming with its reason (source: lib/devices/stream-state.ts)", async () => {
     const o = (await unitStreamHealth(unitId, NOW, db))!;
     const by = (id: string) => o.rows.find((r) => r.deviceId === id)!;
     expect(by(ids.liveEdge!).state).toBe("live");
@@ -194,6 +198,8 @@ describe("the unit table", () => {
     expect(by(ids.offlineEdge!).state).toBe("offline");
     expect(by(ids.connectedOld!).state).toBe("stale");
     expect(by(ids.never!).state).toBe("offline");
+    // Read from the status row's connected, lead_off and last_seen_at (DOMAIN §6.7: lead-off status with no beats).
+    expect(by(ids.leadsOff!)).toMatchObject({ state: "leads_off", connected: true, lastBeatAt: new Date(NOW.getTime() - 5 * MIN).toISOString() });
     expect(by(ids.maintenance!)).toMatchObject({ state: "not_streaming", notStreamingBecause: "in maintenance" });
     expect(by(ids.noBed!)).toMatchObject({ state: "not_streaming", notStreamingBecause: "not assigned to a bed", bedLabel: null });
     expect(by(ids.noToken!)).toMatchObject({ state: "not_streaming", notStreamingBecause: "no stream token" });
@@ -201,7 +207,7 @@ describe("the unit table", () => {
     expect(o.rows.map((r) => r.serial)).toEqual([...o.rows.map((r) => r.serial)].sort());
     expect(o.counts).toEqual({
       live: o.rows.filter((r) => r.state === "live").length,
-      stale: 3, offline: 2, not_streaming: 3,
+      leads_off: 1, stale: 3, offline: 2, not_streaming: 3,
     });
     expect(o.counts.live).toBe(3);
     expect(o.unit).toEqual({ id: unitId, name: "Stream health SH (fictional)", timeZone: "Europe/Berlin" });
@@ -244,11 +250,11 @@ describe("the unit table", () => {
     expect(Math.abs(e.msPerHour! - 1.5)).toBeLessThan(FIT_TOLERANCE * 100);
   });
 
-  it("ranks most trouble first: offline (longest silence first) > stale > live with many events > live and clean > not streaming", async () => {
+  it("ranks most trouble first: offline (longest silence first) > stale > live with many events > leads off > live and clean > not streaming", async () => {
     const o = (await unitStreamHealth(unitId, NOW, db))!;
     const order = [...o.rows].sort((x, y) => y.trouble.rank - x.trouble.rank || x.serial.localeCompare(y.serial));
     expect(order.map((r) => r.trouble.tier)).toEqual([
-      "offline", "offline", "stale", "stale", "stale", "troubled", "clean", "clean", "not_streaming", "not_streaming", "not_streaming",
+      "offline", "offline", "stale", "stale", "stale", "troubled", "leads_off", "clean", "clean", "not_streaming", "not_streaming", "not_streaming",
     ]);
     expect(order.slice(0, 2).map((r) => r.serial)).toEqual(["B-NEVER", "B-OFFLINE-EDGE"]);
     // Stale: the longer silence first; the connected device has been silent longest.
@@ -256,6 +262,7 @@ describe("the unit table", () => {
     const troubled = order[5]!;
     expect(troubled.serial).toBe("A-TROUBLED");
     expect(troubled.gaps + troubled.malformed + troubled.reconnects).toBe(MANY_EVENTS_24H);
+    expect(order[6]!.serial).toBe("A-LEADS-OFF");
   });
 
   it("reuses a longest gap for LONGEST_GAP_REUSE_MS and then reads the beats again", async () => {

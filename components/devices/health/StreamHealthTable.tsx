@@ -97,9 +97,9 @@ function Row({ r, dto, href }: { r: StreamHealthRowDTO; dto: UnitStreamHealthDTO
   );
 }
 
-const SUMMARY_ORDER: StreamState[] = ["live", "stale", "offline", "not_streaming"];
+const SUMMARY_ORDER: StreamState[] = ["live", "leads_off", "stale", "offline", "not_streaming"];
 
-/** "3 live · 1 stale · 0 offline · 2 not streaming". */
+/** "3 live · 1 leads off · 1 stale · 0 offline · 2 not streaming". */
 function StreamSummary({ counts }: { counts: UnitStreamHealthDTO["counts"] }) {
   return (
     <p className="text-muted">
@@ -212,7 +212,8 @@ export function StreamHealthTable({ initial }: { initial: UnitStreamHealthDTO })
         A gap is a run of records the device numbered but never delivered; the longest gap is the longest time between two
         stored beats. Clock offset is the device&apos;s clock minus the server&apos;s; drift is its least-squares slope over the
         day&apos;s minute samples (shown once they span 2 h). Sorted by trouble: offline (longest silence first), stale, live
-        with {dto.manyEvents} or more gaps, malformed events and reconnects together in 24 h, live and clean, then devices Corvane does not read.
+        with {dto.manyEvents} or more gaps, malformed events and reconnects together in 24 h, leads off (the device is heard but
+        reports no patient signal, as on an empty bed), live and clean, then devices Corvane does not read.
       </p>
     </div>
   );

@@ -5,7 +5,7 @@ import { randomUUID } from "node:crypto";
 import { recordAudit } from "@/lib/audit/record";
 import { guardApi } from "@/lib/auth/guard";
 import { clientAddressFrom } from "@/lib/auth/request-context";
-import { schedulerSecretMatches, SCHEDULER_SECRET_HEADER } from "@/lib/compute/config";
+import { SCHEDULED_STEP_S, schedulerSecretMatches, SCHEDULER_SECRET_HEADER } from "@/lib/compute/config";
 import { runCompute, type ComputeRunSummary, type RunComputeOptions } from "@/lib/compute/run";
 import { logger } from "@/lib/log";
 
@@ -40,7 +40,8 @@ export async function POST(req: Request) {
       });
       return json(401, { error: "unauthorized", message: "The scheduler secret does not match." });
     }
-    return run({ trigger: "scheduler", requestId, clientAddress });
+    // A backlog is worked a step of every stay per run; the scheduler calls again at once while `more` is true.
+    return run({ trigger: "scheduler", requestId, clientAddress, stepS: SCHEDULED_STEP_S });
   }
   const guard = await guardApi("jobs.run");
   if (!guard.ok) return guard.response;
