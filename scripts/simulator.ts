@@ -40,7 +40,8 @@ const USAGE = `usage: tsx scripts/simulator.ts [options]                       e
   --port N         port on 127.0.0.1 (default: CORVANE_SIM_PORT, else ${DEFAULT_SIMULATOR_PORT})
   --speed N        simulated seconds per second (default 1 = real time; 60 = a minute a second; at most 3600)
   --truth          tests only: serve /devices/:serial/truth and /devices/:serial/inject
-  --no-backfill    start at now instead of 19:00 local on the previous evening (always so with --device)
+  --no-backfill    start at now instead of 19:00 local on the evening of the last review night that has
+                   ended (always so with --device)
   --seq-ledger F   keep each device's sequence numbers across restarts in the JSON file F (npm start:
                    .corvane/simulator-seq.json); without it every start numbers from 1
   --device SERIAL  serve only this device, at /devices/SERIAL/stream, starting now; its numbering is kept in

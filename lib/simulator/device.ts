@@ -9,7 +9,7 @@ import { subSeed } from "@/lib/engine/simulate/types";
 import { BEAT_TYPES } from "@/lib/streaming/protocol";
 import type { DemoScenario } from "@/seeds/demo-data";
 import { deviceClock } from "./clock";
-import { nextNightBlock, nightBlockAt, type NightBlock } from "./night";
+import { nextNightBlock, nightBlockAt, type NightBlock, type NightTimes } from "./night";
 import type { SeqLedger } from "./seq-ledger";
 import { FAULT, NO_LABEL, packFlags, RecordStore, RHYTHMS, STATUS, TRUTH_LABELS } from "./records";
 import { DRIFT_CLOCK, planNight, RESEND_COUNT } from "./scenarios";
@@ -30,6 +30,8 @@ export interface SimulatedDeviceConfig {
    * one-device mode and the tests).
    */
   occupied?: readonly Occupancy[];
+  /** The unit's review night: a backfill then starts on the evening of the last night that has ended (night.ts). */
+  night?: NightTimes;
 }
 
 /** A span during which a patient is on the device's bed: [fromMs, toMs), epoch ms, toMs null = still there. */

@@ -1,5 +1,6 @@
 // Which devices the simulator plays: every device with an open assignment to a bed, read from PostgreSQL once at
-// start. Each gets its bed's demo scenario (seeds/demo-data.ts), its unit's time zone, and the stays of its bed: a
+// start. Each gets its bed's demo scenario (seeds/demo-data.ts), its unit's time zone and review night (a backfill
+// starts on the evening of the last night that has ended, so a full night is there at any hour), and the stays of its bed: a
 // device streams beats only while a patient is on the bed (an empty bed's monitor reports leads off); neonatal beds
 // always stream a neonatal scenario.
 import type { Knex } from "knex";
@@ -27,6 +28,8 @@ interface Row {
   bed_label: string;
   unit_kind: UnitKind;
   time_zone: string;
+  night_starts_at: string;
+  night_ends_at: string;
 }
 
 export interface LoadedDevice extends SimulatedDeviceConfig {
@@ -58,6 +61,8 @@ export async function loadSimulatedDevices(db: Knex, secret?: string): Promise<L
       "b.label as bed_label",
       "u.kind as unit_kind",
       "u.time_zone",
+      "u.night_starts_at",
+      "u.night_ends_at",
     )
     .orderBy("d.serial");
   const stays = await db("stays")
@@ -87,6 +92,7 @@ export async function loadSimulatedDevices(db: Knex, secret?: string): Promise<L
       timeZone: row.time_zone,
       resolutionMs: Number(row.timestamp_resolution_ms),
       occupied: occupied.get(row.bed_id) ?? [],
+      night: { startsAt: row.night_starts_at, endsAt: row.night_ends_at },
       bedLabel: row.bed_label,
       streamUrl: row.stream_url,
     };

@@ -3,6 +3,10 @@
 // (DOMAIN §4: nights are defined by instants, the zone only names them). Every block begins LEAD_IN_MS before the
 // 19:00 anchor, so a window that starts at 19:00 already has beats before it.
 import { formatInTimeZone, fromZonedTime } from "date-fns-tz";
+import { lastCompletedNight, type NightTimes as UnitNightTimes } from "@/lib/review/night";
+
+/** A unit's review night, local "HH:MM" start and end (units.night_starts_at / night_ends_at). */
+export type NightTimes = Omit<UnitNightTimes, "timeZone">;
 
 const NIGHT_START_LOCAL = "19:00:00";
 /** Blocks begin this long before 19:00 local: the first beat of an evening comes before 19:00. */
@@ -73,10 +77,14 @@ export function nightBlockAt(t: number, timeZone: string): NightBlock {
  * Where a backfill starts: the block of the evening before `now`'s local calendar date ("the previous evening",
  * 19:00 local minus the lead-in). At 07:00 that is 12 h back (the night just ended); at 23:00 it is 28 h back (the
  * whole previous night, the day and this evening so far); just after midnight it is this evening's start.
+ * With the unit's review night (`night`), the block holding the start of the last night that has ended by `now`
+ * instead, so a full night is there to review at any hour: at 01:00 that is the evening before yesterday's, 30 h
+ * back; from the night's end (say 06:00) it is the previous evening again.
  */
-export function backfillStartBlock(now: number, timeZone: string): NightBlock {
+export function backfillStartBlock(now: number, timeZone: string, night?: NightTimes): NightBlock {
   if (!Number.isFinite(now)) throw new RangeError(`not an instant: ${now}`);
   assertZone(timeZone);
+  if (night) return nightBlockAt(lastCompletedNight(new Date(now), { ...night, timeZone }).from.getTime(), timeZone);
   const local = formatInTimeZone(now, timeZone, "yyyy-MM-dd");
   return nightBlock(dateOfDayNumber(parseDate(local) - 1), timeZone);
 }

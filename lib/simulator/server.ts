@@ -24,8 +24,9 @@ const HEARTBEAT_MS = 15_000;
 const LEDGER_SAVE_MS = 60_000;
 /** How often simulated time advances and new records go out, wall ms. */
 const TICK_MS = 250;
-/** Records older than this (simulated time) are dropped from the buffers: above the longest backfill (29 h). */
-const RETENTION_MS = 36 * 3_600_000;
+/** Records older than this (simulated time) are dropped from the buffers: above the longest backfill (35 h, at the
+ *  end of a review night ending at 06:00; a little more for a unit whose night ends later). */
+const RETENTION_MS = 48 * 3_600_000;
 /** A device prepares its next night when its current one ends within this much simulated time (at least; more at
  *  high speed, so that every device gets its own tick before the nights turn). */
 const PREPARE_AHEAD_MS = 15 * 60_000;
@@ -148,7 +149,7 @@ export function createSimulatorServer(options: SimulatorOptions): SimulatorServe
     const olderRecipe = options.seqLedger?.sentUnderOlderRecipe?.(config.serial) ?? false;
     if (olderRecipe) restartedNow.push(config.serial);
     if (backfill && !olderRecipe) {
-      device.begin(backfillStartBlock(wallStart, config.timeZone).startMs);
+      device.begin(backfillStartBlock(wallStart, config.timeZone, config.night).startMs);
       device.advanceTo(wallStart);
     } else {
       // The first tick sends what follows now; seq 1 is the first record after the start.
@@ -164,7 +165,7 @@ export function createSimulatorServer(options: SimulatorOptions): SimulatorServe
   }
   log.info(
     { devices: entries.size, records: countRecords(), backfill, ms: Math.round(performance.now() - started) },
-    backfill ? "simulator backfilled the previous evening" : "simulator starts now, without backfill",
+    backfill ? "simulator backfilled from the evening of the last night that has ended" : "simulator starts now, without backfill",
   );
 
   function countRecords(): number {

@@ -7,7 +7,7 @@ import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { createServer as createNetServer } from "node:net";
-import { formatInTimeZone } from "date-fns-tz";
+import { formatInTimeZone, fromZonedTime } from "date-fns-tz";
 import { EventSource } from "eventsource";
 import type { Knex } from "knex";
 import { afterAll, afterEach, beforeAll, describe, expect, it } from "vitest";
@@ -15,7 +15,7 @@ import { encryptStreamToken } from "@/lib/devices/stream-token";
 import { createLogger } from "@/lib/log";
 import { prepareNight, type SimulatedDeviceConfig } from "@/lib/simulator/device";
 import { loadSimulatedDevices, scenarioForBed } from "@/lib/simulator/load-devices";
-import { eveningAnchor, LEAD_IN_MS, nightBlock } from "@/lib/simulator/night";
+import { backfillStartBlock, eveningAnchor, LEAD_IN_MS, nightBlock } from "@/lib/simulator/night";
 import type { RecordTruth } from "@/lib/simulator/records";
 import { FileSeqLedger, MemorySeqLedger, type SeqLedger } from "@/lib/simulator/seq-ledger";
 import { createSimulatorServer, REPLAY_IN_STEP_MS, RETRY_MS, type SimulatorServer } from "@/lib/simulator/server";
@@ -424,6 +424,20 @@ describe("simulator determinism and backfill", () => {
     // Still pure with an occupancy list.
     const night = nightBlock("2026-11-19", TZ);
     expect(prepareNight(stay, night)).toEqual(prepareNight({ ...stay, occupied: [...stay.occupied] }, night));
+  });
+
+  it.each([
+    // The units' default review night is 22:00–06:00 (migration 20261202000100_review). The last night that has ended:
+    { at: "2026-11-20T01:30", evening: "2026-11-18" }, // 01:30: last night 18th 22:00 → 19th 06:00
+    { at: "2026-11-20T05:59", evening: "2026-11-18" },
+    { at: "2026-11-20T06:00", evening: "2026-11-19" }, // the night of the 19th has just ended
+    { at: "2026-11-20T23:30", evening: "2026-11-19" },
+  ])("with the unit's review night, backfills from the evening of the last night that has ended: $at local", ({ at, evening }) => {
+    const now = fromZonedTime(at, TZ).getTime();
+    const night = { startsAt: "22:00", endsAt: "06:00" };
+    expect(backfillStartBlock(now, TZ, night)).toEqual(nightBlock(evening, TZ));
+    // Without it, the previous calendar evening at every hour of the 20th (so at 01:30 no whole night would be there).
+    expect(backfillStartBlock(now, TZ).evening).toBe("2026-11-19");
   });
 
   it("keeps each device's numbering across a restart on a later local day (sequence ledger)", async () => {
