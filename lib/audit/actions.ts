@@ -1,14 +1,15 @@
 "use server";
 import { auditAs, guardedAction } from "@/lib/auth/guard";
-import { localToInstant } from "@/lib/local-time";
+import { localRangeBound } from "@/lib/local-time";
 import { getUnit } from "@/lib/units/repository";
 import { verifyChainSchema } from "./audit.validation";
 import { verifyAuditChain as verify, type ChainRange, type ChainVerification } from "./verify";
 
 /**
  * Checks the hash chain and the signed checkpoints (whole trail, or a range of entry numbers or of local times on a
- * unit's clock); the check itself is recorded. A local time the clocks skipped is refused; one they repeated is read
- * as its earlier instant when it opens the range and its later one when it closes it (a wider check only checks more).
+ * unit's clock); the check itself is recorded. Local times are read as the search reads them (localRangeBound): a
+ * repeated time is its first occurrence where the range opens and its second where it closes (a wider check only
+ * checks more); a skipped time is the moment of the change.
  */
 export const verifyAuditChain = guardedAction(
   "verifyAuditChain",
@@ -24,13 +25,12 @@ export const verifyAuditChain = guardedAction(
       if (!unit) return { ok: false, code: "invalid_input", message: "Check the highlighted fields.", fieldErrors: { unitId: ["That unit no longer exists."] } };
       timeZone = unit.timeZone;
       const fieldErrors: Record<string, string[]> = {};
-      for (const [field, end] of [["fromTime", "earlier"], ["toTime", "later"]] as const) {
+      for (const [field, end] of [["fromTime", "start"], ["toTime", "end"]] as const) {
         const local = input[field];
         if (!local) continue;
-        const r = localToInstant(local, unit.timeZone);
-        if (r.kind === "missing") fieldErrors[field] = [`This local time does not exist in ${unit.timeZone}: the clocks went forward over it.`];
-        else if (r.kind === "ambiguous") range[field] = end === "earlier" ? r.earlier : r.later;
-        else range[field] = r.at;
+        const at = localRangeBound(local, unit.timeZone, end);
+        if (at) range[field] = at;
+        else fieldErrors[field] = ["That date does not exist."];
       }
       if (range.fromTime && range.toTime && range.fromTime >= range.toTime) fieldErrors.toTime = ["The end must come after the start."];
       if (Object.keys(fieldErrors).length) return { ok: false, code: "invalid_input", message: "Check the highlighted fields.", fieldErrors };

@@ -1,6 +1,6 @@
-import { formatInTimeZone } from "date-fns-tz";
 import { z } from "zod";
 import { ROLES } from "@/lib/auth/roles";
+import { localRangeBound } from "@/lib/local-time";
 
 const seq = z
   .string()
@@ -47,7 +47,6 @@ const blankToUndefined = (v: unknown) => (typeof v === "string" && v.trim() === 
 
 const LOCAL_DATE_TIME = /^(\d{4})-(\d{2})-(\d{2})T(\d{2}):(\d{2})(?::(\d{2}))?$/;
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
-const DAY_MS = 86_400_000;
 
 export const AUDIT_OUTCOMES = ["success", "failure", "denied"] as const;
 export const AUDIT_EXPORT_FORMATS = ["csv", "fhir-ndjson"] as const;
@@ -63,41 +62,6 @@ function isTimeZone(zone: string): boolean {
   }
 }
 
-/**
- * The wall-clock reading of an instant in a zone, as milliseconds of a UTC date with the same fields. (Through
- * formatInTimeZone: date-fns-tz 3.2's getTimezoneOffset gives the later offset for the hours before a change.)
- */
-function wallClock(instant: number, zone: string): number {
-  return Date.parse(`${formatInTimeZone(instant, zone, "yyyy-MM-dd'T'HH:mm:ss.SSS")}Z`);
-}
-
-/**
- * A local date-time ("YYYY-MM-DDTHH:MM[:SS]") read on a zone's clock → the instant, DST-safe: the earliest instant
- * whose wall-clock reading is at or after it. So a time repeated when clocks go back means its first occurrence
- * (ranges from it take in both passes of the repeated hour), and a time skipped when clocks go forward means the
- * moment of the change (nothing happened in the skipped hour). Returns null for an impossible date (30 February).
- */
-export function localToUtc(local: string, zone: string): Date | null {
-  const m = LOCAL_DATE_TIME.exec(local);
-  if (!m) return null;
-  const [y, mo, d, h, mi, s] = m.slice(1).map((x) => Number(x ?? 0)) as [number, number, number, number, number, number];
-  const wall = Date.UTC(y, mo - 1, d, h, mi, s);
-  const check = new Date(wall);
-  if (check.getUTCFullYear() !== y || check.getUTCMonth() !== mo - 1 || check.getUTCDate() !== d || h > 23 || mi > 59 || s > 59) return null;
-  // A zone changes its offset at most once within a day either side (true of every IANA zone since 1970).
-  const offsets = [...new Set([-DAY_MS, 0, DAY_MS].map((k) => wallClock(wall + k, zone) - (wall + k)))];
-  const exact = offsets.map((o) => wall - o).filter((t) => wallClock(t, zone) === wall);
-  if (exact.length) return new Date(Math.min(...exact));
-  // In a gap: search the instants between the two readings for the first whose clock has passed `wall`.
-  let lo = Math.min(...offsets.map((o) => wall - o));
-  let hi = Math.max(...offsets.map((o) => wall - o));
-  while (hi - lo > 1) {
-    const mid = Math.floor((lo + hi) / 2);
-    if (wallClock(mid, zone) >= wall) hi = mid;
-    else lo = mid;
-  }
-  return new Date(hi);
-}
 
 const filterLocalDateTime = z.preprocess(
   blankToUndefined,
@@ -153,8 +117,8 @@ const filterFields = {
 };
 
 function checkRange(v: { zone: string; from?: string; to?: string }, ctx: z.RefinementCtx) {
-  const from = v.from ? localToUtc(v.from, v.zone) : null;
-  const to = v.to ? localToUtc(v.to, v.zone) : null;
+  const from = v.from ? localRangeBound(v.from, v.zone, "start") : null;
+  const to = v.to ? localRangeBound(v.to, v.zone, "end") : null;
   if (v.from && !from) ctx.addIssue({ code: "custom", path: ["from"], message: "That date does not exist." });
   if (v.to && !to) ctx.addIssue({ code: "custom", path: ["to"], message: "That date does not exist." });
   if (from && to && to.getTime() <= from.getTime()) {

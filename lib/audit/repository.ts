@@ -6,7 +6,8 @@ import "server-only";
 import type { Knex } from "knex";
 import { db as defaultDb } from "@/lib/db/knex";
 import type { AuditEventRow, AuditOutcome } from "@/lib/db/tables";
-import { isUuid, localToUtc, type AuditFilter } from "./audit.validation";
+import { localRangeBound } from "@/lib/local-time";
+import { isUuid, type AuditFilter } from "./audit.validation";
 import { chainHash, type ChainedFields } from "./chain";
 
 export interface AuditScope {
@@ -84,8 +85,8 @@ function namesStays(w: Knex.QueryBuilder, stayIds: string[], patientIds: string[
 
 /** Looks up what the filter names and returns the conditions; an unknown patient, stay or device is an error. */
 export async function resolveAuditFilter(filter: AuditFilter, knex: Knex = defaultDb): Promise<ResolvedAuditFilter> {
-  const from = filter.from ? localToUtc(filter.from, filter.zone) : null;
-  const to = filter.to ? localToUtc(filter.to, filter.zone) : null;
+  const from = filter.from ? localRangeBound(filter.from, filter.zone, "start") : null;
+  const to = filter.to ? localRangeBound(filter.to, filter.zone, "end") : null;
 
   let stays: { stayIds: string[]; patientIds: string[] } | null = null;
   if (filter.patient) {

@@ -294,8 +294,12 @@ describe("search filters", () => {
 
     // 00:00 EDT (04:00Z) to 03:00 EST (08:00Z): four hours of clock time that reads three, both 01:30s included.
     expect(await find("2026-11-01T00:00", "2026-11-01T03:00")).toEqual([seq[autumn[1]!], seq[autumn[2]!], seq[autumn[3]!]]);
-    // A repeated time means its first occurrence: from 01:30 takes in 01:30 EDT and both passes after it.
+    // A repeated time means its first occurrence where the range starts: from 01:30 takes in 01:30 EDT and both
+    // passes after it; and its second where the range ends: up to 01:30 takes in the whole first pass and the second
+    // up to 01:30 EST (06:30Z, itself excluded: ranges are half-open).
     expect(await find("2026-11-01T01:30", "2026-11-01T02:00")).toEqual([seq[autumn[1]!], seq[autumn[2]!]]);
+    expect(await find("2026-11-01T00:00", "2026-11-01T01:30")).toEqual([seq[autumn[1]!]]);
+    expect(await find("2026-11-01T00:00", "2026-11-01T01:31")).toEqual([seq[autumn[1]!], seq[autumn[2]!]]);
     // 01:00 EST (06:00Z) to 04:00 EDT (08:00Z): two hours.
     expect(await find("2026-03-08T01:00", "2026-03-08T04:00")).toEqual([seq[spring[1]!], seq[spring[2]!], seq[spring[3]!]]);
     // 02:30 does not exist that day: it means the moment of the change, 03:00 EDT (07:00Z).

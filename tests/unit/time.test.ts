@@ -1,4 +1,5 @@
 import { describe, expect, it } from "vitest";
+import { localRangeBound } from "@/lib/local-time";
 import { formatDuration, formatLocal, formatLocalPrecise } from "@/lib/time";
 
 // US DST rules for 2026 (Energy Policy Act of 2005): starts 8 March 02:00 local, ends 1 November 02:00 local.
@@ -23,5 +24,26 @@ describe("local time with offset", () => {
     expect(formatDuration("2026-10-31T23:00:00Z", "2026-11-01T12:00:00Z")).toBe("13 h");
     expect(formatDuration("2026-12-01T00:00:00Z", "2026-12-03T05:00:00Z")).toBe("2 d 5 h");
     expect(formatDuration("2026-12-01T00:00:00Z", "2026-12-01T00:59:00Z")).toBe("under 1 h");
+  });
+});
+
+describe("ends of a local time range (lib/local-time.ts localRangeBound)", () => {
+  it("reads a repeated autumn time as its first pass where a range starts and its second where it ends", () => {
+    // 01:30 on 1 Nov 2026 happens at 05:30Z (EDT) and again at 06:30Z (EST).
+    expect(localRangeBound("2026-11-01T01:30", NY, "start")!.toISOString()).toBe("2026-11-01T05:30:00.000Z");
+    expect(localRangeBound("2026-11-01T01:30", NY, "end")!.toISOString()).toBe("2026-11-01T06:30:00.000Z");
+    expect(localRangeBound("2026-11-01T01:30:15", NY, "end")!.toISOString()).toBe("2026-11-01T06:30:15.000Z");
+    // Outside the repeated hour both ends agree.
+    expect(localRangeBound("2026-11-01T02:00", NY, "start")!.toISOString()).toBe("2026-11-01T07:00:00.000Z");
+    expect(localRangeBound("2026-11-01T02:00", NY, "end")!.toISOString()).toBe("2026-11-01T07:00:00.000Z");
+  });
+
+  it("reads a time skipped in spring as the moment of the change, at either end, and refuses an impossible date", () => {
+    // 02:00–03:00 EST on 8 Mar 2026 never happened: 07:00Z is 03:00 EDT.
+    expect(localRangeBound("2026-03-08T02:30", NY, "start")!.toISOString()).toBe("2026-03-08T07:00:00.000Z");
+    expect(localRangeBound("2026-03-08T02:30", NY, "end")!.toISOString()).toBe("2026-03-08T07:00:00.000Z");
+    expect(localRangeBound("2026-03-08T01:59", NY, "end")!.toISOString()).toBe("2026-03-08T06:59:00.000Z");
+    expect(localRangeBound("2026-02-30T10:00", NY, "start")).toBeNull();
+    expect(localRangeBound("2026-11-01 01:30", NY, "start")).toBeNull();
   });
 });
