@@ -8,7 +8,8 @@ import { join } from "node:path";
 import { parseArgs } from "node:util";
 import { db } from "@/lib/db/knex";
 import { logger } from "@/lib/log";
-import { loadSimulatedDevices } from "@/lib/simulator/load-devices";
+import { hashStreamToken } from "@/lib/devices/stream-token";
+import { changedStreamTokens, loadSimulatedDevices } from "@/lib/simulator/load-devices";
 import { FileSeqLedger } from "@/lib/simulator/seq-ledger";
 import { createSimulatorServer } from "@/lib/simulator/server";
 import type { SimulatedDeviceConfig } from "@/lib/simulator/device";
@@ -31,6 +32,8 @@ const SCENARIO_NAMES: Record<DemoScenario, true> = {
 };
 const SCENARIOS = Object.keys(SCENARIO_NAMES) as DemoScenario[];
 const DEFAULT_SCENARIO: DemoScenario = "healthy_sleep";
+/** How often the demo simulator looks for issued or rotated stream tokens, ms. */
+const TOKEN_POLL_MS = 10_000;
 /** The registry's serial form (lib/devices/device-fields.validation.ts), also safe as part of a file name. */
 const SERIAL = /^[A-Za-z0-9][A-Za-z0-9-]{0,63}$/;
 
@@ -52,8 +55,8 @@ const USAGE = `usage: tsx scripts/simulator.ts [options]                       e
                    ${SCENARIOS.join(", ")}
   --help           this text
 
-Without --device: reads every device with an open bed assignment from DATABASE_URL; needs NEXTAUTH_SECRET to
-unseal their tokens. With --device: reads nothing; the device page shows the exact command. Invented demo data only.`;
+Without --device: reads every device with an open bed assignment from DATABASE_URL, and every 10 s any token
+issued or rotated since; needs NEXTAUTH_SECRET to unseal them. With --device: reads nothing; the device page shows the exact command. Invented demo data only.`;
 
 class UsageError extends Error {}
 
@@ -147,10 +150,12 @@ async function main(): Promise<number> {
   let devices;
   try {
     devices = await loadSimulatedDevices(db);
-  } finally {
+  } catch (err) {
     await db.destroy();
+    throw err;
   }
   if (devices.length === 0) {
+    await db.destroy();
     console.error("simulator: no device has an open bed assignment; seed the demo (CORVANE_DEMO_MODE=1 npm start) or assign devices first");
     return 1;
   }
@@ -162,7 +167,32 @@ async function main(): Promise<number> {
   const seqLedger = args.seqLedger ? new FileSeqLedger(args.seqLedger) : undefined;
   const sim = createSimulatorServer({ devices, speed: args.speed, truth: args.truth, backfill: args.backfill, seqLedger });
   await sim.listen(args.port);
-  return closeOnSignal("simulator", () => sim.close());
+  // A token issued or rotated on a device's page reaches its monitor here, as if entered on it: polled, so the
+  // simulator needs nothing from the app.
+  const known = new Map(devices.map((d) => [d.serial, hashStreamToken(d.token)]));
+  let polling = false;
+  const poll = setInterval(() => {
+    if (polling) return;
+    polling = true;
+    changedStreamTokens(db, known)
+      .then(({ tokens, errors }) => {
+        for (const [serial, { token, hash }] of tokens) {
+          sim.setToken(serial, token);
+          known.set(serial, hash);
+          logger.info({ serial }, "the device's stream token changed in the registry: its monitor now takes the new one");
+        }
+        for (const e of errors) logger.warn({ err: e }, "a changed stream token could not be read; the monitor keeps its token");
+      })
+      .catch((err: unknown) => logger.warn({ err }, "could not read the devices' stream tokens; trying again"))
+      .finally(() => {
+        polling = false;
+      });
+  }, TOKEN_POLL_MS);
+  return closeOnSignal("simulator", async () => {
+    clearInterval(poll);
+    await sim.close();
+    await db.destroy();
+  });
 }
 
 runScript("simulator", main);

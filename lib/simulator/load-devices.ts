@@ -39,6 +39,37 @@ export interface LoadedDevice extends SimulatedDeviceConfig {
 }
 
 /**
+ * The current stream token of each of `serials` that has one, unsealed (NEXTAUTH_SECRET, or `secret`), with the hash
+ * it was read with, so a caller polling for issued or rotated tokens unseals only the ones that changed (`known`:
+ * serial → hash already in use). A token that cannot be unsealed or does not match its hash is left out and named in
+ * `errors`.
+ */
+export async function changedStreamTokens(
+  db: Knex,
+  known: ReadonlyMap<string, string>,
+  secret?: string,
+): Promise<{ tokens: Map<string, { token: string; hash: string }>; errors: string[] }> {
+  const rows: { serial: string; stream_token_enc: string; stream_token_hash: string }[] = await db("devices")
+    .whereIn("serial", [...known.keys()])
+    .whereNotNull("stream_token_enc")
+    .whereNotNull("stream_token_hash")
+    .select("serial", "stream_token_enc", "stream_token_hash");
+  const tokens = new Map<string, { token: string; hash: string }>();
+  const errors: string[] = [];
+  for (const row of rows) {
+    if (known.get(row.serial) === row.stream_token_hash) continue;
+    try {
+      const token = decryptStreamToken(row.stream_token_enc, secret);
+      if (!tokenMatches(token, row.stream_token_hash)) throw new Error("the sealed stream token does not match its stored hash");
+      tokens.set(row.serial, { token, hash: row.stream_token_hash });
+    } catch (err) {
+      errors.push(`device ${row.serial}: ${(err as Error).message}`);
+    }
+  }
+  return { tokens, errors };
+}
+
+/**
  * Devices with an open bed assignment, ordered by serial, with their stream tokens unsealed (NEXTAUTH_SECRET, or
  * `secret`). Throws, naming the device, when a token cannot be unsealed or does not match its stored hash.
  */

@@ -84,6 +84,11 @@ export interface SimulatorServer {
   stats(): SimulatorStats;
   /** The simulated device, for tests and logs. */
   device(serial: string): SimulatedDevice | undefined;
+  /**
+   * Gives a device a new stream token, as a biomedical engineer enters a rotated token on the monitor: new
+   * connections must present it; open ones go on. False for an unknown serial.
+   */
+  setToken(serial: string, token: string): boolean;
 }
 
 interface Reader {
@@ -488,5 +493,12 @@ export function createSimulatorServer(options: SimulatorOptions): SimulatorServe
     simulatedNow,
     stats,
     device: (serial) => entries.get(serial)?.device,
+    setToken(serial, token) {
+      const entry = entries.get(serial);
+      if (!entry) return false;
+      if (!token) throw new RangeError(`device ${serial}: empty stream token`);
+      entry.tokenHash = hashStreamToken(token);
+      return true;
+    },
   };
 }

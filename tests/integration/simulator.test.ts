@@ -11,10 +11,10 @@ import { formatInTimeZone, fromZonedTime } from "date-fns-tz";
 import { EventSource } from "eventsource";
 import type { Knex } from "knex";
 import { afterAll, afterEach, beforeAll, describe, expect, it } from "vitest";
-import { encryptStreamToken } from "@/lib/devices/stream-token";
+import { encryptStreamToken, hashStreamToken } from "@/lib/devices/stream-token";
 import { createLogger } from "@/lib/log";
 import { prepareNight, type SimulatedDeviceConfig } from "@/lib/simulator/device";
-import { loadSimulatedDevices, scenarioForBed } from "@/lib/simulator/load-devices";
+import { changedStreamTokens, loadSimulatedDevices, scenarioForBed } from "@/lib/simulator/load-devices";
 import { backfillStartBlock, eveningAnchor, LEAD_IN_MS, nightBlock } from "@/lib/simulator/night";
 import type { RecordTruth } from "@/lib/simulator/records";
 import { FileSeqLedger, MemorySeqLedger, type SeqLedger } from "@/lib/simulator/seq-ledger";
@@ -843,6 +843,43 @@ describe("simulator devices from PostgreSQL", () => {
     await db("devices").where({ serial: demoDeviceSerial("4W-11") }).update({ stream_token_enc: encryptStreamToken("x") });
     await expect(loadSimulatedDevices(db)).rejects.toThrow(/device LVG-4W-11: the sealed stream token does not match/);
     await db("devices").where({ serial: demoDeviceSerial("4W-11") }).update({ stream_token_enc: sealed!.stream_token_enc });
+  });
+
+  it("takes a token issued or rotated in the registry: only changed ones are read, and the monitor then requires it", async () => {
+    const devices = (await loadSimulatedDevices(db)).filter((d) => d.bedLabel === "4W-09" || d.bedLabel === "4W-10");
+    const known = new Map(devices.map((d) => [d.serial, hashStreamToken(d.token)]));
+    // Nothing changed: nothing to unseal.
+    expect((await changedStreamTokens(db, known)).tokens.size).toBe(0);
+    // A rotation on 4W-09's page writes a new sealed token and its hash (lib/devices/tokens.ts does the same).
+    const rotated = devices.find((d) => d.bedLabel === "4W-09")!;
+    const fresh = `rotated-${rotated.serial}-token-0123456789abcdef`;
+    const before = await db("devices").where({ serial: rotated.serial }).first("stream_token_enc", "stream_token_hash");
+    await db("devices").where({ serial: rotated.serial }).update({ stream_token_enc: encryptStreamToken(fresh), stream_token_hash: hashStreamToken(fresh) });
+    try {
+      const { tokens, errors } = await changedStreamTokens(db, known);
+      expect(errors).toEqual([]);
+      expect([...tokens.keys()]).toEqual([rotated.serial]);
+      expect(tokens.get(rotated.serial)).toEqual({ token: fresh, hash: hashStreamToken(fresh) });
+      // The running monitor takes it: the old token is refused from then on, the new one is served.
+      const { sim, base } = await serve(devices, { backfill: false });
+      const open = (token: string) => fetch(`${base}/devices/${rotated.serial}/stream`, { headers: { authorization: `Bearer ${token}` }, signal: AbortSignal.timeout(2000) });
+      const old = await open(rotated.token);
+      expect(old.status).toBe(200);
+      await old.body!.cancel();
+      expect(sim.setToken(rotated.serial, fresh)).toBe(true);
+      expect((await open(rotated.token)).status).toBe(401);
+      const now = await open(fresh);
+      expect(now.status).toBe(200);
+      await now.body!.cancel();
+      expect(sim.setToken("NO-SUCH-DEVICE", fresh)).toBe(false);
+      // A sealed token that does not match its hash is named, not used.
+      await db("devices").where({ serial: rotated.serial }).update({ stream_token_hash: hashStreamToken("something else") });
+      const bad = await changedStreamTokens(db, known);
+      expect(bad.tokens.size).toBe(0);
+      expect(bad.errors).toEqual([`device ${rotated.serial}: the sealed stream token does not match its stored hash`]);
+    } finally {
+      await db("devices").where({ serial: rotated.serial }).update(before!);
+    }
   });
 
   it("runs as a command: refuses bad options, serves /health, exits 0 on SIGTERM", async () => {

@@ -205,9 +205,9 @@ export function TokenPanel({ unitId, deviceId, serial, timeZone, token, canManag
         <div className="border-t border-line pt-4">
           <h3 className="mb-2 font-bold">Demo simulator</h3>
           <p className="text-sm text-muted">
-            The demo simulator that <code className="font-mono">npm start</code> runs serves this device. It reads the
-            device&apos;s current token when it starts, so after a rotation the stream goes on with the old token during the
-            grace period and with the new one from the simulator&apos;s next start.
+            The demo simulator that <code className="font-mono">npm start</code> runs serves this device. It takes a token
+            issued or rotated here within 10 seconds, as if it had been entered on the monitor, so the stream goes on with
+            the new token without a restart.
           </p>
         </div>
       )}
