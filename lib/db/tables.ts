@@ -415,6 +415,8 @@ export interface DeviceHealthMinuteRow {
   reconnects: number;
   clock_offset_ms: number | null;
   connected: boolean;
+  /** Longest interval between consecutive stored beat times made by the beats stored in the minute, ms. */
+  longest_gap_ms: number | null;
 }
 
 export const MAINTENANCE_KINDS = ["preventive", "repair", "firmware_update"] as const;

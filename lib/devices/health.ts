@@ -1,7 +1,8 @@
 // Stream health for biomedical engineers: per device, the stream's state, last beat, beats received per minute, gaps,
 // duplicates, malformed events, reconnects, clock offset and drift, and the last 24 h minute by minute. Stream data
 // only — no clinical value, no patient. A fixed number of queries whatever the number of devices: the unit table reads
-// its devices, their 24-h minute samples and their beats in three statements (and the unit in a fourth), in parallel.
+// its devices, their 24-h minute samples (longest gap included: the ingest keeps it per minute, so no beat of the day
+// is scanned) and their beats of the last 5 min in three statements (and the unit in a fourth), in parallel.
 import "server-only";
 import type { Knex } from "knex";
 import { db as defaultDb } from "@/lib/db/knex";
@@ -20,13 +21,6 @@ export const DRIFT_MIN_SPAN_MS = 2 * HOUR_MS;
 /** A live stream with at least this many gaps, malformed events and reconnects together in 24 h ranks as troubled:
  *  one or two reconnects a day are routine (a cable moved, network maintenance); five is worth a look (our choice). */
 export const MANY_EVENTS_24H = 5;
-
-/** A device's longest gap is recomputed at most this often: it reads every beat of the day (about 0.2 s per device
- *  at neonatal rates on the demo data), while the table refreshes every 15 s. Every other figure is read fresh. */
-export const LONGEST_GAP_REUSE_MS = 60_000;
-
-/** Longest gaps as last computed, per database and device. */
-const longestGapCache = new WeakMap<Knex, Map<string, { at: number; longestS: number | null }>>();
 
 /**
  * Trouble tiers, most trouble first: offline (nothing for longer than OFFLINE_AFTER_MS) > stale > live with many
@@ -65,8 +59,10 @@ export interface StreamHealthRowDTO {
   /** 24 h: runs of sequence numbers the device never delivered, and the records in them (device_health_minutes). */
   gaps: number;
   missingRecords: number;
-  /** 24 h: the longest time between two consecutive stored beats (from the beats' beat_at), s; null under 2 beats.
-   *  Computed at most every LONGEST_GAP_REUSE_MS per device. */
+  /** 24 h: the longest time between two consecutive stored beats (beat_at), s: the largest of the window's minute
+   *  samples (device_health_minutes.longest_gap_ms, kept by the ingest as it stores beats), so a gap counts in the
+   *  minute its closing beat was stored, whole even if it began before the window; null when no beat stored in the
+   *  window followed an earlier one. */
   longestGapS: number | null;
   duplicates: number;
   malformed: number;
@@ -161,11 +157,13 @@ type MinuteTotalsSql = {
   intercept: number | null;
   samples: number;
   span_s: number | null;
+  longest_gap_ms: number | null;
 };
 
 /**
- * Per device, the window's minute samples summed, and the least-squares line through the minute clock offsets
- * (PostgreSQL's regr_slope / regr_intercept, x = hours since the window's start, so the slope is in ms per hour).
+ * Per device, the window's minute samples summed, the longest of their gaps, and the least-squares line through the
+ * minute clock offsets (PostgreSQL's regr_slope / regr_intercept, x = hours since the window's start, so the slope is
+ * in ms per hour).
  */
 function minuteTotalsQuery(knex: Knex, scope: Scope, from: Date, now: Date) {
   const s = scopeSql(scope);
@@ -177,7 +175,8 @@ function minuteTotalsQuery(knex: Knex, scope: Scope, from: Date, now: Date) {
             regr_intercept(m.clock_offset_ms, extract(epoch FROM m.minute - :from) / 3600) AS intercept,
             count(m.clock_offset_ms)::int AS samples,
             extract(epoch FROM max(m.minute) FILTER (WHERE m.clock_offset_ms IS NOT NULL)
-                             - min(m.minute) FILTER (WHERE m.clock_offset_ms IS NOT NULL))::float8 AS span_s
+                             - min(m.minute) FILTER (WHERE m.clock_offset_ms IS NOT NULL))::float8 AS span_s,
+            max(m.longest_gap_ms) AS longest_gap_ms
        FROM device_health_minutes m JOIN devices d ON d.id = m.device_id
       WHERE ${s.sql} AND m.minute >= :from AND m.minute <= :now
       GROUP BY m.device_id`,
@@ -185,44 +184,18 @@ function minuteTotalsQuery(knex: Knex, scope: Scope, from: Date, now: Date) {
   );
 }
 
-/**
- * Per device, beats with a beat time in the rate window, and — except for the devices in `reuse` — the longest
- * interval between consecutive stored beats in the health window (beat_at differences, read through the
- * (device_id, beat_at) index; `computed` says whether it was).
- */
-function beatFiguresQuery(knex: Knex, scope: Scope, from: Date, now: Date, reuse: string[]) {
+/** Per device, beats with a beat time in the rate window (read through the (device_id, beat_at) index). */
+function recentBeatsQuery(knex: Knex, scope: Scope, now: Date) {
   const s = scopeSql(scope);
-  return knex.raw<{ rows: { device_id: string; recent: number; longest_s: number | null; computed: boolean }[] }>(
-    `SELECT d.id AS device_id, r.recent, g.longest_s, NOT (d.id = ANY(:reuse::uuid[])) AS computed
+  return knex.raw<{ rows: { device_id: string; recent: number }[] }>(
+    `SELECT d.id AS device_id, r.recent
        FROM devices d
        CROSS JOIN LATERAL (
          SELECT count(*)::int AS recent FROM beats b WHERE b.device_id = d.id AND b.beat_at > :rateFrom AND b.beat_at <= :now
        ) r
-       CROSS JOIN LATERAL (
-         SELECT max(extract(epoch FROM x.beat_at - x.prev))::float8 AS longest_s
-           FROM (SELECT b.beat_at, lag(b.beat_at) OVER (ORDER BY b.beat_at) AS prev
-                   FROM beats b
-                  WHERE NOT (d.id = ANY(:reuse::uuid[])) AND b.device_id = d.id AND b.beat_at >= :from AND b.beat_at <= :now) x
-       ) g
       WHERE ${s.sql}`,
-    { scopeId: s.id, from, now, rateFrom: new Date(now.getTime() - RATE_WINDOW_MS), reuse },
+    { scopeId: s.id, now, rateFrom: new Date(now.getTime() - RATE_WINDOW_MS) },
   );
-}
-
-/** Longest gaps computed within LONGEST_GAP_REUSE_MS before `now` (never ones computed for a later `now`). */
-function reusableLongestGaps(knex: Knex, now: Date): Map<string, number | null> {
-  const out = new Map<string, number | null>();
-  for (const [id, c] of longestGapCache.get(knex) ?? []) {
-    const age = now.getTime() - c.at;
-    if (age >= 0 && age < LONGEST_GAP_REUSE_MS) out.set(id, c.longestS);
-  }
-  return out;
-}
-
-function rememberLongestGaps(knex: Knex, now: Date, rows: { device_id: string; longest_s: number | null; computed: boolean }[]) {
-  let cache = longestGapCache.get(knex);
-  if (!cache) longestGapCache.set(knex, (cache = new Map()));
-  for (const r of rows) if (r.computed) cache.set(r.device_id, { at: now.getTime(), longestS: r.longest_s });
 }
 
 /** Start of the health window: HEALTH_MINUTES whole minutes ending with the one that holds `now`. */
@@ -270,18 +243,16 @@ function troubleOf(state: StreamState, lastBeatAt: Date | null, events: number, 
 }
 
 async function healthRows(knex: Knex, scope: Scope, now: Date, from: Date): Promise<StreamHealthRowDTO[]> {
-  const reuse = reusableLongestGaps(knex, now);
-  const [devices, totals, beats] = await Promise.all([
+  const [devices, totals, recent] = await Promise.all([
     devicesQuery(knex, scope, now),
     minuteTotalsQuery(knex, scope, from, now),
-    beatFiguresQuery(knex, scope, from, now, [...reuse.keys()]),
+    recentBeatsQuery(knex, scope, now),
   ]);
-  rememberLongestGaps(knex, now, beats.rows);
   const totalsOf = new Map(totals.rows.map((t) => [t.device_id, t]));
-  const beatsOf = new Map(beats.rows.map((b) => [b.device_id, { recent: b.recent, longestS: b.computed ? b.longest_s : (reuse.get(b.device_id) ?? null) }]));
+  const recentOf = new Map(recent.rows.map((r) => [r.device_id, r.recent]));
   return devices.rows.map((d) => {
     const t = totalsOf.get(d.id);
-    const b = beatsOf.get(d.id);
+    const longestGapMs = t?.longest_gap_ms ?? null;
     const because = notStreamingReason(d);
     const state = streamStateOf(
       { streamed: because === null, connected: d.connected ?? false, lastBeatAt: d.last_beat_at, lastSeenAt: d.last_seen_at, leadOff: d.lead_off ?? false },
@@ -300,10 +271,10 @@ async function healthRows(knex: Knex, scope: Scope, now: Date, from: Date): Prom
       notStreamingBecause: because,
       connected: d.connected ?? false,
       lastBeatAt: d.last_beat_at?.toISOString() ?? null,
-      beatsPerMinute: (b?.recent ?? 0) / (RATE_WINDOW_MS / MINUTE_MS),
+      beatsPerMinute: (recentOf.get(d.id) ?? 0) / (RATE_WINDOW_MS / MINUTE_MS),
       gaps,
       missingRecords: t?.missing ?? 0,
-      longestGapS: b?.longestS ?? null,
+      longestGapS: longestGapMs === null ? null : longestGapMs / 1000,
       duplicates: t?.duplicates ?? 0,
       malformed,
       malformedByKind: d.malformed_by_kind ?? {},

@@ -1,12 +1,12 @@
 // Stream health on real PostgreSQL: the writer's minute samples (device_health_minutes), the unit table and the
 // device series read back from them and from the beats, the states at their bounds, clock drift against an exact
-// line, the longest gap, the trouble order, a query count that does not grow with the number of devices, and the
-// retention of the minute samples.
+// line, the longest gap (kept by the writer per minute, checked against the stored beats), the trouble order, a query
+// count that does not grow with the number of devices, and the retention of the minute samples.
 import type { Knex } from "knex";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { runCompute } from "@/lib/compute/run";
 import { deleteExpiredHealthMinutes } from "@/lib/compute/retention";
-import { deviceHealthSeries, DRIFT_MIN_SPAN_MS, HEALTH_MINUTES, healthWindowFrom, LONGEST_GAP_REUSE_MS, MANY_EVENTS_24H, unitStreamHealth } from "@/lib/devices/health";
+import { deviceHealthSeries, DRIFT_MIN_SPAN_MS, HEALTH_MINUTES, healthWindowFrom, MANY_EVENTS_24H, unitStreamHealth } from "@/lib/devices/health";
 import { LIVE_WITHIN_MS, OFFLINE_AFTER_MS } from "@/lib/devices/stream-state";
 import { BeatWriter, type DeviceCounters } from "@/lib/ingest/beat-writer";
 import type { BeatRecord } from "@/lib/streaming/protocol";
@@ -84,8 +84,10 @@ describe("the writer's minute samples", () => {
     const writer = new BeatWriter(db, map, { batchSize: 10_000, flushIntervalMs: 3_600_000, maxBuffered: 100_000 }, undefined, () => clock);
     const ca = map.get(a)!;
     const cb = map.get(b)!;
+    /** Beats of both devices are BEAT_MS apart, so every interval a minute's beats make is BEAT_MS. */
+    const BEAT_MS = 800;
     const add = (deviceId: string, seq: number) => {
-      const t = Date.parse("2025-06-10T11:00:00Z") + seq * 800;
+      const t = Date.parse("2025-06-10T11:00:00Z") + seq * BEAT_MS;
       writer.add({ deviceId, record: beat(seq, t), beatAt: t, receivedAt: clock });
     };
     let statements: string[] = [];
@@ -118,13 +120,13 @@ describe("the writer's minute samples", () => {
     const rows = await db("device_health_minutes").whereIn("device_id", [a, b]).orderBy(["device_id", "minute"]).select();
     const of = (d: string) => rows.filter((r) => r.device_id === d).map((r) => ({ ...r, device_id: undefined, minute: r.minute.toISOString(), missing_seqs: Number(r.missing_seqs) }));
     expect(of(a)).toEqual([
-      { device_id: undefined, minute: "2025-06-10T11:58:00.000Z", beats: 5, gaps: 2, missing_seqs: 4, duplicates: 3, malformed: 1, reconnects: 1, clock_offset_ms: 125, connected: true },
-      { device_id: undefined, minute: "2025-06-10T11:59:00.000Z", beats: 1, gaps: 0, missing_seqs: 0, duplicates: 0, malformed: 0, reconnects: 2, clock_offset_ms: 130, connected: false },
+      { device_id: undefined, minute: "2025-06-10T11:58:00.000Z", beats: 5, gaps: 2, missing_seqs: 4, duplicates: 3, malformed: 1, reconnects: 1, clock_offset_ms: 125, connected: true, longest_gap_ms: BEAT_MS },
+      { device_id: undefined, minute: "2025-06-10T11:59:00.000Z", beats: 1, gaps: 0, missing_seqs: 0, duplicates: 0, malformed: 0, reconnects: 2, clock_offset_ms: 130, connected: false, longest_gap_ms: BEAT_MS },
     ]);
-    // b's replayed beat hit ON CONFLICT: no beat stored in 11:59.
+    // b's replayed beat hit ON CONFLICT: no beat stored in 11:59, so no interval either.
     expect(of(b)).toEqual([
-      { device_id: undefined, minute: "2025-06-10T11:58:00.000Z", beats: 2, gaps: 0, missing_seqs: 0, duplicates: 0, malformed: 0, reconnects: 0, clock_offset_ms: -40, connected: true },
-      { device_id: undefined, minute: "2025-06-10T11:59:00.000Z", beats: 0, gaps: 0, missing_seqs: 0, duplicates: 0, malformed: 0, reconnects: 0, clock_offset_ms: -40, connected: true },
+      { device_id: undefined, minute: "2025-06-10T11:58:00.000Z", beats: 2, gaps: 0, missing_seqs: 0, duplicates: 0, malformed: 0, reconnects: 0, clock_offset_ms: -40, connected: true, longest_gap_ms: BEAT_MS },
+      { device_id: undefined, minute: "2025-06-10T11:59:00.000Z", beats: 0, gaps: 0, missing_seqs: 0, duplicates: 0, malformed: 0, reconnects: 0, clock_offset_ms: -40, connected: true, longest_gap_ms: null },
     ]);
     // The minutes add up to the cumulative status the writer keeps beside them.
     const status = await db("device_stream_status").where({ device_id: a }).first();
@@ -136,7 +138,181 @@ describe("the writer's minute samples", () => {
     writer2.touch(a);
     await writer2.flush();
     const after = await db("device_health_minutes").where({ device_id: a, minute: new Date("2025-06-10T11:59:00Z") }).first();
-    expect(after).toMatchObject({ beats: 1, gaps: 0, duplicates: 0, malformed: 0, reconnects: 2, connected: true });
+    expect(after).toMatchObject({ beats: 1, gaps: 0, duplicates: 0, malformed: 0, reconnects: 2, connected: true, longest_gap_ms: BEAT_MS });
+  });
+});
+
+describe("the longest gap the writer keeps", () => {
+  /** A beat reaches the writer this long after its beat time; each flush runs at its last beat's arrival. */
+  const ARRIVAL_MS = 250;
+  const writerOptions = { batchSize: 100_000, flushIntervalMs: 3_600_000, maxBuffered: 1_000_000 };
+
+  /** Beat times from `start`: the interval before beat k is `special(k, previous time)` if it gives one, else a
+   *  regular 600–999 ms (heart-rate-like, deterministic). */
+  function beatTimes(start: number, n: number, special: (k: number, prev: number) => number | undefined): number[] {
+    const out = [start];
+    for (let k = 1; k < n; k++) out.push(out[k - 1]! + (special(k, out[k - 1]!) ?? 600 + ((k * 37) % 400)));
+    return out;
+  }
+
+  /** Per UTC minute of storing (the beats' received_at, which the writer sets to the flush's clock here), the largest
+   *  difference between a stored beat's time and the stored beat before it in time: SQL LAG over the beats table, as
+   *  Stream health computed it before the writer kept the figure. */
+  async function lagByMinute(deviceId: string) {
+    const { rows } = await db.raw<{ rows: { minute: Date; longest: number | null }[] }>(
+      `SELECT date_trunc('minute', received_at) AS minute, max(round(extract(epoch FROM beat_at - prev) * 1000))::int AS longest
+         FROM (SELECT beat_at, received_at, lag(beat_at) OVER (ORDER BY beat_at) AS prev FROM beats WHERE device_id = ?) x
+        GROUP BY 1 ORDER BY 1`,
+      [deviceId],
+    );
+    return rows.map((r) => ({ minute: r.minute.toISOString(), longest: r.longest }));
+  }
+
+  async function recorded(deviceId: string) {
+    const rows = await db("device_health_minutes").where({ device_id: deviceId }).orderBy("minute").select("minute", "longest_gap_ms", "beats");
+    return rows.map((r) => ({ minute: r.minute.toISOString(), longest: r.longest_gap_ms, beats: r.beats }));
+  }
+
+  const lagOverall = async (deviceId: string) =>
+    (await db.raw<{ rows: { longest: number | null }[] }>(
+      `SELECT max(round(extract(epoch FROM beat_at - prev) * 1000))::int AS longest
+         FROM (SELECT beat_at, lag(beat_at) OVER (ORDER BY beat_at) AS prev FROM beats WHERE device_id = ?) x`,
+      [deviceId],
+    )).rows[0]!.longest;
+
+  const minuteOf = (t: number) => new Date(t - (t % MIN)).toISOString();
+
+  it("equals the largest difference between consecutive stored beat times (SQL LAG over the beats table), minute by minute, over many flushes of two devices", async () => {
+    const unit = await addUnit("SHK");
+    const a = await addDevice(unit, "K-A");
+    const b = await addDevice(unit, "K-B");
+    const map = new Map<string, DeviceCounters>([[a, counters()], [b, counters()]]);
+    let clock = 0;
+    const writer = new BeatWriter(db, map, writerOptions, undefined, () => clock);
+    const start = Date.parse("2025-06-10T09:00:03.000Z");
+    // Device a: a 5-s gap inside a flush (beat 50); a 12.3-s gap between the last beat of one flush and the first of
+    // the next (beat 120), whose next beat steps 30 ms back (a clock correction) — by beat time the gap is then
+    // 12.27 s; and a 22-s gap from second 50 of a minute (beat 260) to second 12 of the next (beat 261), the two beats
+    // stored in two flushes. (Beat k is the (k + 1)-th, seq k + 1.)
+    const ta = beatTimes(start, 400, (k, prev) => {
+      if (k === 50) return 5_000;
+      if (k === 120) return 12_300;
+      if (k === 121) return -30;
+      if (k === 260) return prev - (prev % MIN) + 50_000 - prev; // to second 50 of its minute
+      if (k === 261) return MIN - 50_000 + 12_000; // to second 12 of the next
+      return undefined;
+    });
+    // Device b: 450–649 ms beats with one 7-s gap.
+    const tb = beatTimes(start + 100, 700, (k) => (k === 333 ? 7_000 : 450 + ((k * 53) % 200)));
+    // Flushes end after every 40 beats of a, and before beats 120 and 261 (the gaps that span two flushes).
+    const ends = [...new Set([...Array.from({ length: 10 }, (_, i) => (i + 1) * 40), 120, 261])].sort((x, y) => x - y);
+    let ia = 0;
+    let ib = 0;
+    for (const end of ends) {
+      const last = Math.max(...ta.slice(ia, end));
+      clock = last + ARRIVAL_MS;
+      for (; ia < end; ia++) writer.add({ deviceId: a, record: beat(ia + 1, ta[ia]!), beatAt: ta[ia]!, receivedAt: clock });
+      for (; ib < tb.length && tb[ib]! <= last; ib++) writer.add({ deviceId: b, record: beat(ib + 1, tb[ib]!), beatAt: tb[ib]!, receivedAt: clock });
+      await writer.flush();
+      expect(writer.failures).toBe(0);
+    }
+    // The gaps that span flushes: beat 120 is stored in the flush after beat 119's; beats 260 and 261 (the gap from
+    // second 50 to second 12) lie on either side of a minute boundary and are stored in flushes of different minutes.
+    expect(ends).toEqual(expect.arrayContaining([120, 261]));
+    expect(ta[260]! - ta[259]!).toBeGreaterThan(0);
+    expect(ta[261]! - ta[260]!).toBe(22_000);
+    const storedAt = async (k: number) =>
+      minuteOf((await db.raw<{ rows: { received_at: Date }[] }>("SELECT received_at FROM beats WHERE device_id = ? AND seq = ?", [a, k + 1])).rows[0]!.received_at.getTime());
+    expect(await storedAt(261)).not.toBe(await storedAt(260));
+
+    for (const d of [a, b]) {
+      const rec = await recorded(d);
+      expect(rec.length).toBeGreaterThan(3);
+      expect(rec.map(({ minute, longest }) => ({ minute, longest }))).toEqual(await lagByMinute(d));
+      expect(Math.max(...rec.map((r) => r.longest ?? 0))).toBe(await lagOverall(d));
+    }
+    // The gap that spans a minute boundary is counted in the minute of the beat that closed it.
+    const recA = await recorded(a);
+    const closing = await storedAt(261);
+    expect(recA.find((r) => r.minute === closing)!.longest).toBe(await lagOverall(a));
+    expect(await lagOverall(a)).toBe(22_000);
+
+    // The Stream health table and device tab read the same figure from the minute rows (every beat is in the window).
+    const now = new Date(ta.at(-1)! + 5_000);
+    const o = (await unitStreamHealth(unit, now, db))!;
+    for (const d of [a, b]) expect(o.rows.find((r) => r.deviceId === d)!.longestGapS).toBe((await lagOverall(d))! / 1000);
+    expect((await deviceHealthSeries(a, now, db))!.latest.longestGapS).toBe(22);
+  });
+
+  it("makes no gap of replayed beats (already stored), neither in the writer that stored them nor in a restarted one", async () => {
+    const unit = await addUnit("SHP");
+    const d = await addDevice(unit, "P-1");
+    const map = new Map<string, DeviceCounters>([[d, counters()]]);
+    let clock = 0;
+    const writer = new BeatWriter(db, map, writerOptions, undefined, () => clock);
+    const t = beatTimes(Date.parse("2025-06-10T09:30:00.000Z"), 300, () => undefined);
+    const send = async (w: BeatWriter, ks: number[], at: number) => {
+      clock = at;
+      for (const k of ks) w.add({ deviceId: d, record: beat(k + 1, t[k]!), beatAt: t[k]!, receivedAt: clock });
+      await w.flush();
+      expect(w.failures).toBe(0);
+    };
+    const range = (from: number, to: number) => Array.from({ length: to - from }, (_, i) => from + i);
+    await send(writer, range(0, 100), t[99]! + ARRIVAL_MS);
+    const before = await lagOverall(d);
+
+    // Only replays, a minute later: nothing stored, no interval.
+    const replayMinute = Date.parse("2025-06-10T09:40:05.000Z");
+    await send(writer, range(10, 30), replayMinute);
+    expect((await recorded(d)).find((r) => r.minute === minuteOf(replayMinute))).toEqual({ minute: minuteOf(replayMinute), longest: null, beats: 0 });
+
+    // Replays of early beats ahead of new ones: the first new beat's interval is from the latest stored beat (99),
+    // not from the replayed beat 40 before it in the flush (which would make a gap of 60 beats).
+    const mixedMinute = Date.parse("2025-06-10T09:41:05.000Z");
+    await send(writer, [...range(20, 41), ...range(100, 150)], mixedMinute);
+    // A restarted writer (it has stored nothing for the device) does the same: it finds the latest stored beat (149)
+    // in the beats table.
+    const restarted = new BeatWriter(db, map, writerOptions, undefined, () => clock);
+    const restartMinute = Date.parse("2025-06-10T09:42:05.000Z");
+    await send(restarted, [...range(0, 5), ...range(140, 200)], restartMinute);
+
+    const rec = await recorded(d);
+    expect(rec.map(({ minute, longest }) => ({ minute, longest })).filter((r) => r.minute !== minuteOf(replayMinute))).toEqual(await lagByMinute(d));
+    expect(rec.find((r) => r.minute === minuteOf(mixedMinute))).toMatchObject({ beats: 50 });
+    expect(rec.find((r) => r.minute === minuteOf(restartMinute))).toMatchObject({ beats: 50 });
+    // Every interval is a regular one: the replays made none longer than the longest before them or between new beats.
+    expect(Math.max(...rec.map((r) => r.longest ?? 0))).toBe(await lagOverall(d));
+    expect(await lagOverall(d)).toBeLessThan(1_000);
+    expect(before).toBeLessThan(1_000);
+  });
+
+  it("starts with a device's first beat ever, spans flushes of one beat, and makes no gap of a beat stepped back before the latest stored time", async () => {
+    const unit = await addUnit("SHF");
+    const d = await addDevice(unit, "F-1");
+    const map = new Map<string, DeviceCounters>([[d, counters()]]);
+    let clock = 0;
+    const writer = new BeatWriter(db, map, writerOptions, undefined, () => clock);
+    const t1 = Date.parse("2025-06-10T09:50:10.000Z");
+    const flushes: { seq: number; at: number }[][] = [
+      [{ seq: 1, at: t1 }],
+      [{ seq: 2, at: t1 + 2_000 }],
+      // A clock correction after beat 2: beat 3 is 40 ms before it, beat 4 760 ms after it.
+      [{ seq: 3, at: t1 + 1_960 }, { seq: 4, at: t1 + 2_760 }],
+    ];
+    for (const [i, f] of flushes.entries()) {
+      clock = t1 + i * MIN + ARRIVAL_MS; // one flush a minute
+      for (const x of f) writer.add({ deviceId: d, record: beat(x.seq, x.at), beatAt: x.at, receivedAt: clock });
+      await writer.flush();
+    }
+    const rec = await recorded(d);
+    // By definition: no beat before the first, so no interval; then beat 2 − beat 1; then beat 4 − beat 2 (the latest
+    // stored time before it), while beat 3 − beat 2 is negative and no gap.
+    expect(rec.map((r) => r.longest)).toEqual([null, 2_000, 760]);
+    // By beat time, beat 3 now splits the 2-s interval already counted (LAG: 1.96 s): an interval counted once stays
+    // counted, so the figure can exceed LAG by at most the step back.
+    const lag = (await lagOverall(d))!;
+    expect(lag).toBe(1_960);
+    expect(Math.max(...rec.map((r) => r.longest ?? 0)) - lag).toBe(40);
   });
 });
 
@@ -161,8 +337,8 @@ describe("the unit table", () => {
     ids.noToken = await addDevice(unitId, "B-NO-TOKEN", { token: false });
     await addDevice(unitId, "B-DECOMMISSIONED", { status: "decommissioned", assigned: false });
 
-    // A live, clean device with 300 beats in the last 5 min (one a second), and 101 earlier beats ending 38.5 s before
-    // the first of those; one beat 25 h ago, outside the window, would otherwise make a 24-h gap.
+    // A live, clean device with 300 beats in the last 5 min (one a second), 101 earlier beats, and one beat 25 h ago.
+    // Inserted straight into the beats table, so no minute sample holds a longest gap for it.
     ids.clean = await addDevice(unitId, "A-CLEAN");
     const t0 = NOW.getTime();
     const recent = Array.from({ length: 300 }, (_, k) => t0 - (299 - k) * 1000);
@@ -213,12 +389,36 @@ describe("the unit table", () => {
     expect(o.unit).toEqual({ id: unitId, name: "Stream health SH (fictional)", timeZone: "Europe/Berlin" });
   });
 
-  it("counts beats received per minute over the last 5 min and the longest gap between stored beats in the window", async () => {
+  it("counts beats received per minute over the last 5 min from the beats, and reads no longest gap from them", async () => {
     const o = (await unitStreamHealth(unitId, NOW, db))!;
     const clean = o.rows.find((r) => r.deviceId === ids.clean)!;
     expect(clean.beatsPerMinute).toBe(60); // 300 beats in (now − 5 min, now]
-    expect(clean.longestGapS).toBe(38.5); // (now − 299 s) − (now − 337.5 s)
+    // Its beats alone would make a gap of 38.5 s ((now − 299 s) − (now − 337.5 s)); the figure is the minute samples'.
+    expect(clean.longestGapS).toBeNull();
     expect(o.rows.find((r) => r.deviceId === ids.never)!).toMatchObject({ beatsPerMinute: 0, longestGapS: null });
+  });
+
+  it("takes the longest gap from the window's minute samples: the largest longest_gap_ms from the window's first minute to the one holding now", async () => {
+    const unit = await addUnit("SHL");
+    const d = await addDevice(unit, "L-1");
+    const none = await addDevice(unit, "L-NONE");
+    const from = healthWindowFrom(NOW).getTime();
+    const nowMinute = from + (HEALTH_MINUTES - 1) * MIN;
+    await db("device_health_minutes").insert([
+      { device_id: d, minute: new Date(from - MIN), longest_gap_ms: 3_600_000 }, // before the window: not counted
+      { device_id: d, minute: new Date(from), longest_gap_ms: 38_500 },
+      { device_id: d, minute: new Date(from + MIN), longest_gap_ms: null },
+      { device_id: d, minute: new Date(nowMinute), longest_gap_ms: 38_499 },
+      { device_id: none, minute: new Date(from), beats: 0, longest_gap_ms: null },
+    ]);
+    // Beats 90 s apart in the window: a scan of the beats would say 90 s.
+    await insertBeats(d, [NOW.getTime() - 100_000, NOW.getTime() - 10_000]);
+    const o = (await unitStreamHealth(unit, NOW, db))!;
+    expect(o.rows.find((r) => r.deviceId === d)!.longestGapS).toBe(38.5);
+    expect(o.rows.find((r) => r.deviceId === none)!.longestGapS).toBeNull();
+    expect((await deviceHealthSeries(d, NOW, db))!.latest.longestGapS).toBe(38.5);
+    // One minute later the window starts at from + 1 min: the 38.5 s sample has left it.
+    expect((await unitStreamHealth(unit, new Date(NOW.getTime() + MIN), db))!.rows.find((r) => r.deviceId === d)!.longestGapS).toBe(38.499);
   });
 
   it("sums the window's minute samples and fits the clock drift: offset = a + b·t exactly gives slope b (least squares recovers an exact line)", async () => {
@@ -263,20 +463,6 @@ describe("the unit table", () => {
     expect(troubled.serial).toBe("A-TROUBLED");
     expect(troubled.gaps + troubled.malformed + troubled.reconnects).toBe(MANY_EVENTS_24H);
     expect(order[6]!.serial).toBe("A-LEADS-OFF");
-  });
-
-  it("reuses a longest gap for LONGEST_GAP_REUSE_MS and then reads the beats again", async () => {
-    const unit = await addUnit("SHG");
-    const d = await addDevice(unit, "G-1");
-    const t0 = NOW.getTime();
-    await insertBeats(d, [t0 - 50_000, t0 - 40_000]);
-    const longest = async (at: number) => (await unitStreamHealth(unit, new Date(at), db))!.rows[0]!.longestGapS;
-    expect(await longest(t0)).toBe(10);
-    await db.raw("UPDATE beats SET beat_at = ? WHERE device_id = ? AND seq = 1", [new Date(t0 - 70_000), d]);
-    expect(await longest(t0 + LONGEST_GAP_REUSE_MS - 1)).toBe(10);
-    expect(await longest(t0 + LONGEST_GAP_REUSE_MS)).toBe(30);
-    // Never a value computed for a later instant.
-    expect(await longest(t0)).toBe(30);
   });
 
   it("takes the same four queries for 25 devices as for a handful (source: the brief, no query per device)", async () => {
