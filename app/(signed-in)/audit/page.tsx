@@ -12,6 +12,7 @@ import { ChainCheckForm } from "@/components/audit/ChainCheckForm";
 import { AuditExportButtons } from "@/components/audit/AuditExportButtons";
 import { FieldError } from "@/components/FieldError";
 import { Notice } from "@/components/Notice";
+import { PageHeader } from "@/components/shell/PageHeader";
 
 export const metadata = { title: "Audit trail" };
 const PAGE_SIZE = 50;
@@ -121,14 +122,16 @@ export default async function AuditPage({ searchParams }: { searchParams: Promis
 
   return (
     <div className="space-y-5">
-      <div>
-        <h1>Audit trail</h1>
-        <p className="text-muted">
-          Every sign-in, view of patient data and change, newest first. Entries cannot be edited or deleted; each one
-          carries the SHA-256 hash of the one before, so any change breaks the chain. You see the entries of the units
-          you may audit, and those that belong to no unit (sign-ins, automatic jobs).
-        </p>
-      </div>
+      <PageHeader
+        title="Audit trail"
+        description={
+          <p className="text-muted">
+            Every sign-in, view of patient data and change, newest first. Entries cannot be edited or deleted; each one
+            carries the SHA-256 hash of the one before, so any change breaks the chain. You see the entries of the units
+            you may audit, and those that belong to no unit (sign-ins, automatic jobs).
+          </p>
+        }
+      />
 
       <form method="get" action="/audit" aria-labelledby="filters-heading" className="card space-y-4 p-4" noValidate>
         <h2 id="filters-heading">Find entries</h2>

@@ -11,6 +11,7 @@ import { DailyChart } from "@/components/quality/DailyChart";
 import { fmtCount, fmtDay, fmtMinutes, fmtPercent, fmtRate } from "@/components/quality/format";
 import { AckTable, BurdenTable, CoverageTable, MessagesTable } from "@/components/quality/MetricTables";
 import { QualityFilterForm } from "@/components/quality/QualityFilterForm";
+import { PageHeader } from "@/components/shell/PageHeader";
 
 export const metadata = { title: "Quality metrics" };
 
@@ -73,17 +74,17 @@ export default async function QualityPage({ searchParams }: { searchParams: Prom
 
   return (
     <div className="space-y-6">
-      <div className="flex flex-wrap items-end justify-between gap-x-6 gap-y-2">
-        <div>
-          <h1>Quality metrics</h1>
+      <PageHeader
+        title="Quality metrics"
+        description={
           <p className="text-muted">
             {fmtDay(m.filter.from)} {m.filter.from.slice(0, 4)} to {fmtDay(m.filter.to)} {m.filter.to.slice(0, 4)}
             {m.defaulted ? " (the last 7 complete days)" : ""}, each unit from 00:00 of the first day to 24:00 of the last in its own time zone ({zones.join(", ")}).
             Figures as of {formatLocalPrecise(m.asOf, m.units[0]!.unit.timeZone)}.
           </p>
-        </div>
-        <a href={exportHref(m)} className="btn-secondary" download>Export CSV</a>
-      </div>
+        }
+        aside={<a href={exportHref(m)} className="btn-secondary" download>Export CSV</a>}
+      />
 
       {!parsed.success && <Notice tone="info">Part of the filter in the address was not understood (see the fields below); the last 7 complete days are shown instead.</Notice>}
       <QualityFilterForm units={filterUnits} values={{ unit: parsed.success ? (filter.unit ?? "") : "", from: m.filter.from, to: m.filter.to }} errors={errors} />

@@ -4,6 +4,7 @@ import { censusOf } from "@/lib/units/repository";
 import { unitIdSchema } from "@/lib/units/unit-id.validation";
 import { DecisionSupportCaution } from "@/components/DecisionSupportCaution";
 import { CensusTable } from "@/components/census/CensusTable";
+import { PageHeader } from "@/components/shell/PageHeader";
 
 export const metadata = { title: "Census" };
 
@@ -17,15 +18,15 @@ export default async function CensusPage({ params }: { params: Promise<{ unitId:
   await auditAs(actor, { action: "census.view", permission: "census.view", unitId: unitId.data, target: { type: "unit", id: unitId.data } });
   return (
     <div className="space-y-5">
-      <div className="flex flex-wrap items-end justify-between gap-4">
-        <div>
-          <p className="text-sm text-muted">Unit census</p>
-          <h1>{census.unit.name}</h1>
-        </div>
-        <p className="text-muted">
-          <span className="text-2xl font-bold text-ink">{census.occupied}</span> of {census.beds.length} beds occupied
-        </p>
-      </div>
+      <PageHeader
+        eyebrow="Unit census"
+        title={census.unit.name}
+        aside={
+          <p className="text-muted">
+            <span className="text-2xl font-bold text-ink">{census.occupied}</span> of {census.beds.length} beds occupied
+          </p>
+        }
+      />
       <DecisionSupportCaution />
       <CensusTable initial={census} />
     </div>

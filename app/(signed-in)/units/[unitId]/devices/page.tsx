@@ -11,6 +11,7 @@ import { unitIdSchema } from "@/lib/units/unit-id.validation";
 import { Notice } from "@/components/Notice";
 import { StreamStateTag } from "@/components/devices/StreamStateTag";
 import { TOKEN_STATE_WORDS } from "@/components/devices/registry/token-words";
+import { PageHeader } from "@/components/shell/PageHeader";
 
 export const metadata = { title: "Device registry" };
 
@@ -105,18 +106,18 @@ export default async function DeviceRegistryPage({ params, searchParams }: {
   const showDecommissioned = filter.status === "all" || filter.status === "decommissioned";
   return (
     <div className="space-y-5">
-      <div className="flex flex-wrap items-end justify-between gap-4">
-        <div>
-          <p className="text-sm text-muted">Device registry</p>
-          <h1>{registry.unit.name}</h1>
-        </div>
-        {canManage && (
-          <div className="flex flex-wrap gap-3">
-            <Link href={`${base}/new`} className="btn-primary">Register a device</Link>
-            <Link href={`${base}/import`} className="btn-secondary">Import from CSV</Link>
-          </div>
-        )}
-      </div>
+      <PageHeader
+        eyebrow="Device registry"
+        title={registry.unit.name}
+        aside={
+          canManage && (
+            <div className="flex flex-wrap gap-3">
+              <Link href={`${base}/new`} className="btn-primary">Register a device</Link>
+              <Link href={`${base}/import`} className="btn-secondary">Import from CSV</Link>
+            </div>
+          )
+        }
+      />
 
       <form method="get" action={base} aria-label="Filter the devices" className="card flex flex-wrap items-end gap-x-4 gap-y-3 px-4 py-3">
         {!parsed.success && (

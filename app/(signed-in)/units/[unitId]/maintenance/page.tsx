@@ -5,6 +5,7 @@ import { DUE_SOON_DAYS, dueList } from "@/lib/devices/maintenance";
 import { unitIdSchema } from "@/lib/units/unit-id.validation";
 import { DueTable } from "@/components/devices/maintenance/DueTable";
 import { formatDay } from "@/components/devices/maintenance/format";
+import { PageHeader } from "@/components/shell/PageHeader";
 
 export const metadata = { title: "Maintenance" };
 
@@ -20,14 +21,16 @@ export default async function UnitMaintenancePage({ params }: { params: Promise<
   );
   return (
     <div className="space-y-6">
-      <div>
-        <p className="text-sm text-muted">Maintenance</p>
-        <h1>{due.unit.name}</h1>
-        <p className="text-muted">
-          Next due dates of the unit&apos;s devices in service, as of {formatDay(due.today)} ({due.unit.timeZone}). Decommissioned devices
-          are not listed; their logs stay in the <Link href={`/units/${due.unit.id}/devices`}>Device registry</Link>.
-        </p>
-      </div>
+      <PageHeader
+        eyebrow="Maintenance"
+        title={due.unit.name}
+        description={
+          <p className="text-muted">
+            Next due dates of the unit&apos;s devices in service, as of {formatDay(due.today)} ({due.unit.timeZone}). Decommissioned devices
+            are not listed; their logs stay in the <Link href={`/units/${due.unit.id}/devices`}>Device registry</Link>.
+          </p>
+        }
+      />
       {table("overdue", "Overdue", due.overdue, "No device is overdue.")}
       {table("due-soon", `Due within ${DUE_SOON_DAYS} days`, due.dueSoon, `No device is due in the next ${DUE_SOON_DAYS} days.`)}
       {table("no-maintenance", "No maintenance recorded", due.noMaintenance, "Every device has at least one maintenance entry.", false)}

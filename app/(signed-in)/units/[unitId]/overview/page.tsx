@@ -7,6 +7,7 @@ import { wardOverview } from "@/lib/review/overview";
 import { unitIdSchema } from "@/lib/units/unit-id.validation";
 import { DecisionSupportCaution } from "@/components/DecisionSupportCaution";
 import { OverviewTable } from "@/components/overview/OverviewTable";
+import { PageHeader } from "@/components/shell/PageHeader";
 
 export const metadata = { title: "Ward overview" };
 
@@ -28,15 +29,15 @@ export default async function WardOverviewPage({ params }: { params: Promise<{ u
   return (
     // On a wide wall display the table takes the whole screen width, past the shell's reading width.
     <div className="space-y-4 2xl:mx-[calc(50%-50vw+1.5rem)]">
-      <div className="flex flex-wrap items-end justify-between gap-x-6 gap-y-2">
-        <div>
-          <p className="text-sm text-muted">Ward overview</p>
-          <h1>{overview.unit.name}</h1>
-        </div>
-        <p className="text-muted">
-          <span className="text-2xl font-bold text-ink">{occupied}</span> of {overview.beds.length} beds occupied
-        </p>
-      </div>
+      <PageHeader
+        eyebrow="Ward overview"
+        title={overview.unit.name}
+        aside={
+          <p className="text-muted">
+            <span className="text-2xl font-bold text-ink">{occupied}</span> of {overview.beds.length} beds occupied
+          </p>
+        }
+      />
       <DecisionSupportCaution />
       <OverviewTable initial={overview} />
     </div>

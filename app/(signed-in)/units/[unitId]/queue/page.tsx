@@ -10,6 +10,7 @@ import { unitIdSchema } from "@/lib/units/unit-id.validation";
 import { DecisionSupportCaution } from "@/components/DecisionSupportCaution";
 import { QueueFiltersForm } from "@/components/queue/QueueFiltersForm";
 import { QueueList } from "@/components/queue/QueueList";
+import { PageHeader } from "@/components/shell/PageHeader";
 
 export const metadata = { title: "Review queue" };
 
@@ -38,16 +39,16 @@ export default async function ReviewQueuePage({ params, searchParams }: {
   });
   return (
     <div className="space-y-4">
-      <div className="flex flex-wrap items-end justify-between gap-x-6 gap-y-2">
-        <div>
-          <p className="text-sm text-muted">Review queue</p>
-          <h1>{queue.unit.name}</h1>
-        </div>
-        <p className="text-muted">
-          Acknowledgement target: <span className="font-bold text-ink">{queue.unit.ackTargetMinutes} min</span>
-          {canAct ? null : <span className="block text-sm">You can view this queue; charge nurses work it.</span>}
-        </p>
-      </div>
+      <PageHeader
+        eyebrow="Review queue"
+        title={queue.unit.name}
+        aside={
+          <p className="text-muted">
+            Acknowledgement target: <span className="font-bold text-ink">{queue.unit.ackTargetMinutes} min</span>
+            {canAct ? null : <span className="block text-sm">You can view this queue; charge nurses work it.</span>}
+          </p>
+        }
+      />
       <DecisionSupportCaution />
       <QueueFiltersForm unitId={queue.unit.id} beds={queue.beds} filters={filters} invalid={!parsed.success} />
       <QueueList initial={queue} canAct={canAct} clinicians={clinicians} />

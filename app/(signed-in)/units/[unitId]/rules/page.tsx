@@ -6,6 +6,7 @@ import { formatLocal } from "@/lib/time";
 import { unitIdSchema } from "@/lib/units/unit-id.validation";
 import { DecisionSupportCaution } from "@/components/DecisionSupportCaution";
 import { RuleSetForm } from "@/components/rules/RuleSetForm";
+import { PageHeader } from "@/components/shell/PageHeader";
 
 export const metadata = { title: "Rule sets" };
 
@@ -20,10 +21,7 @@ export default async function RuleSetsPage({ params }: { params: Promise<{ unitI
   const tz = sets.unit.timeZone;
   return (
     <div className="space-y-5">
-      <div>
-        <p className="text-sm text-muted">Rule sets</p>
-        <h1>{sets.unit.name}</h1>
-      </div>
+      <PageHeader eyebrow="Rule sets" title={sets.unit.name} />
       <DecisionSupportCaution />
       <p className="text-sm text-muted">
         Rule sets are a local protocol decision for the unit&apos;s clinical leads. They raise review flags — prompts to

@@ -6,6 +6,7 @@ import { guardPage } from "@/lib/auth/guard";
 import { unitStreamHealth } from "@/lib/devices/health";
 import { unitIdSchema } from "@/lib/units/unit-id.validation";
 import { StreamHealthTable } from "@/components/devices/health/StreamHealthTable";
+import { PageHeader } from "@/components/shell/PageHeader";
 
 export const metadata = { title: "Stream health" };
 
@@ -18,10 +19,7 @@ export default async function StreamHealthPage({ params }: { params: Promise<{ u
   if (!health) notFound();
   return (
     <div className="space-y-4">
-      <div>
-        <p className="text-sm text-muted">Stream health</p>
-        <h1>{health.unit.name}</h1>
-      </div>
+      <PageHeader eyebrow="Stream health" title={health.unit.name} />
       <StreamHealthTable initial={health} />
     </div>
   );

@@ -5,6 +5,7 @@ import { getUnit } from "@/lib/units/repository";
 import { unitIdSchema } from "@/lib/units/unit-id.validation";
 import { DeviceImport } from "@/components/devices/import/DeviceImport";
 import { ImportFileFormat } from "@/components/devices/import/ImportFileFormat";
+import { PageHeader } from "@/components/shell/PageHeader";
 
 export const metadata = { title: "Import devices" };
 
@@ -17,14 +18,10 @@ export default async function ImportDevicesPage({ params }: { params: Promise<{ 
   if (!unit) notFound();
   return (
     <div className="space-y-5">
-      <div>
-        <p className="text-sm text-muted">
-          <Link href={`/units/${unit.id}/devices`}>Device registry</Link>
-        </p>
-        <h1>
-          Import devices from CSV <span className="font-normal text-muted">· {unit.name}</span>
-        </h1>
-      </div>
+      <PageHeader
+        eyebrow={<Link href={`/units/${unit.id}/devices`}>Device registry</Link>}
+        title={<>Import devices from CSV <span className="font-normal text-muted">· {unit.name}</span></>}
+      />
       <ImportFileFormat />
       <DeviceImport unitId={unit.id} />
     </div>

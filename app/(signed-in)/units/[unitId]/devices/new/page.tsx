@@ -6,6 +6,7 @@ import { db } from "@/lib/db";
 import { unitIdSchema } from "@/lib/units/unit-id.validation";
 import { demoSimulatorPort } from "@/lib/devices/simulator-command";
 import { RegisterDeviceForm } from "@/components/devices/registry/RegisterDeviceForm";
+import { PageHeader } from "@/components/shell/PageHeader";
 
 export const metadata = { title: "Register a device" };
 
@@ -31,15 +32,15 @@ export default async function RegisterDevicePage({ params }: { params: Promise<{
   while (used.has(port)) port += 1;
   return (
     <div className="max-w-4xl space-y-5">
-      <div>
-        <p className="text-sm text-muted">
-          <Link href={`/units/${unit.id}/devices`}>Device registry</Link> · {unit.name}
-        </p>
-        <h1>Register a device</h1>
-        <p className="mt-1 text-muted">
-          The device joins this unit&apos;s registry without a token. On its page you then issue its stream token and assign it to a bed.
-        </p>
-      </div>
+      <PageHeader
+        eyebrow={<><Link href={`/units/${unit.id}/devices`}>Device registry</Link> · {unit.name}</>}
+        title="Register a device"
+        description={
+          <p className="mt-1 text-muted">
+            The device joins this unit&apos;s registry without a token. On its page you then issue its stream token and assign it to a bed.
+          </p>
+        }
+      />
       <RegisterDeviceForm unitId={unit.id} simulatorPort={port} />
     </div>
   );
